@@ -1,0 +1,1 @@
+//! placeholder; see docs/design.md
