@@ -92,7 +92,10 @@ pub struct Floors {
 
 impl Default for Floors {
     fn default() -> Self {
-        Self { rho_min: 1e-12, p_min: 1e-12 }
+        Self {
+            rho_min: 1e-12,
+            p_min: 1e-12,
+        }
     }
 }
 
@@ -120,21 +123,75 @@ impl SolverConfig {
     pub fn validate(&self) -> Result<(), MhdError> {
         match self.eos {
             Eos::Ideal { gamma } if !(gamma > 1.0 && gamma.is_finite()) => {
-                return Err(MhdError::InvalidConfig { key: "gamma", value: gamma.to_string(), allowed: "a finite number > 1" })
+                return Err(MhdError::InvalidConfig {
+                    key: "gamma",
+                    value: gamma.to_string(),
+                    allowed: "a finite number > 1",
+                })
             }
             Eos::Isothermal { cs } if !(cs > 0.0 && cs.is_finite()) => {
-                return Err(MhdError::InvalidConfig { key: "cs", value: cs.to_string(), allowed: "a finite number > 0" })
+                return Err(MhdError::InvalidConfig {
+                    key: "cs",
+                    value: cs.to_string(),
+                    allowed: "a finite number > 0",
+                })
             }
             _ => {}
         }
+        if let Reconstruction::PlmCharacteristic(l) = self.reconstruction {
+            return Err(MhdError::InvalidConfig {
+                key: "reconstruction",
+                value: format!("PlmCharacteristic({l:?})"),
+                allowed:
+                    "FirstOrder or Plm(limiter) (characteristic limiting is not implemented yet)",
+            });
+        }
         if !(self.cfl > 0.0 && self.cfl < 1.0) {
-            return Err(MhdError::InvalidConfig { key: "cfl", value: self.cfl.to_string(), allowed: "0 < cfl < 1" });
+            return Err(MhdError::InvalidConfig {
+                key: "cfl",
+                value: self.cfl.to_string(),
+                allowed: "0 < cfl < 1",
+            });
         }
         if !(self.floors.rho_min > 0.0 && self.floors.rho_min.is_finite()) {
-            return Err(MhdError::InvalidConfig { key: "rho_min", value: self.floors.rho_min.to_string(), allowed: "a finite number > 0" });
+            return Err(MhdError::InvalidConfig {
+                key: "rho_min",
+                value: self.floors.rho_min.to_string(),
+                allowed: "a finite number > 0",
+            });
         }
         if !(self.floors.p_min > 0.0 && self.floors.p_min.is_finite()) {
-            return Err(MhdError::InvalidConfig { key: "p_min", value: self.floors.p_min.to_string(), allowed: "a finite number > 0" });
+            return Err(MhdError::InvalidConfig {
+                key: "p_min",
+                value: self.floors.p_min.to_string(),
+                allowed: "a finite number > 0",
+            });
+        }
+        for b in [self.boundaries.left, self.boundaries.right] {
+            if let Boundary::Inflow(w) = b {
+                let iso = matches!(self.eos, Eos::Isothermal { .. });
+                if !(w.rho > 0.0 && w.rho.is_finite()) {
+                    return Err(MhdError::InvalidConfig {
+                        key: "inflow.rho",
+                        value: w.rho.to_string(),
+                        allowed: "a finite number > 0",
+                    });
+                }
+                if !(iso || (w.p > 0.0 && w.p.is_finite())) {
+                    return Err(MhdError::InvalidConfig {
+                        key: "inflow.p",
+                        value: w.p.to_string(),
+                        allowed: "a finite number > 0",
+                    });
+                }
+                if ![w.vx, w.vy, w.vz, w.by, w.bz].iter().all(|x| x.is_finite()) {
+                    return Err(MhdError::InvalidConfig {
+                        key: "inflow",
+                        value: format!("{w:?}"),
+                        allowed: "finite velocity and field components",
+                    });
+                }
+            }
         }
         let lp = matches!(self.boundaries.left, Boundary::Periodic);
         let rp = matches!(self.boundaries.right, Boundary::Periodic);
@@ -146,5 +203,24 @@ impl SolverConfig {
             });
         }
         Ok(())
+    }
+}
+
+impl Default for SolverConfig {
+    /// Ideal gas γ = 5/3, HLLD, PLM with the MC limiter, SSP-RK2, C = 0.8, default floors,
+    /// periodic boundaries.
+    fn default() -> Self {
+        Self {
+            eos: Eos::Ideal { gamma: 5.0 / 3.0 },
+            riemann: RiemannKind::Hlld,
+            reconstruction: Reconstruction::Plm(Limiter::Mc),
+            integrator: Integrator::SspRk2,
+            cfl: 0.8,
+            floors: Floors::default(),
+            boundaries: BoundaryPair {
+                left: Boundary::Periodic,
+                right: Boundary::Periodic,
+            },
+        }
     }
 }

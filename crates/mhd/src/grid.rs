@@ -25,7 +25,11 @@ impl Grid {
     /// Creates a grid; errors if `n == 0` or the interval is empty or not finite.
     pub fn new(n: usize, x_min: f64, x_max: f64) -> Result<Self, MhdError> {
         if n == 0 {
-            return Err(MhdError::InvalidConfig { key: "n", value: n.to_string(), allowed: "at least 1 cell" });
+            return Err(MhdError::InvalidConfig {
+                key: "n",
+                value: n.to_string(),
+                allowed: "at least 1 cell",
+            });
         }
         if !(x_min.is_finite() && x_max.is_finite() && x_max > x_min) {
             return Err(MhdError::InvalidConfig {
@@ -34,7 +38,12 @@ impl Grid {
                 allowed: "finite bounds with x_max > x_min",
             });
         }
-        Ok(Self { n, ng: Self::GHOSTS, x_min, x_max })
+        Ok(Self {
+            n,
+            ng: Self::GHOSTS,
+            x_min,
+            x_max,
+        })
     }
 
     /// Cell width Δx.
@@ -74,6 +83,8 @@ impl Grid {
 
     /// The `n + 1` face coordinates of the interior cells.
     pub fn faces(&self) -> Vec<f64> {
-        (0..=self.n).map(|i| self.x_min + i as f64 * self.dx()).collect()
+        (0..=self.n)
+            .map(|i| self.x_min + i as f64 * self.dx())
+            .collect()
     }
 }

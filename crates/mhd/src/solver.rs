@@ -1,23 +1,32 @@
-//! The finite-volume MHD update (to be completed: see docs/design.md).
+//! The finite-volume MHD update: boundaries, reconstruction, Riemann fluxes, SSP Runge–Kutta
+//! stages and floors.
 
-use crate::config::SolverConfig;
+use crate::config::{Boundary, Integrator, Limiter, Reconstruction, RiemannKind, SolverConfig};
 use crate::grid::Grid;
+use crate::physics::{fast2, Gas};
+use crate::riemann::{hlld, hlle, HLLD_DEGENERACY_EPS};
 use crate::state::State;
 use crate::MhdError;
 
 /// What one call of [`MhdSolver::step`] did. Fluxes through the boundaries are
 /// time-integrated over the step (per unit area, code units), positive = into the domain.
+///
+/// The floor amounts are the contributions to the *end-of-step* totals, i.e. a floor applied
+/// in an intermediate Runge–Kutta stage is weighted by the factor with which that stage enters
+/// the final combination. With these, for every conserved quantity q,
+/// `Σ q Δx (after) = Σ q Δx (before) + inflow_left + inflow_right (+ floor_mass / floor_energy)`
+/// holds to round-off.
 #[derive(Debug, Clone, Copy, PartialEq, Default)]
 pub struct StepReport {
-    /// Cells whose density was raised to the floor.
+    /// Cells whose density was raised to the floor (counted once per stage and cell).
     pub rho_floor_hits: u64,
-    /// Cells whose pressure was raised to the floor.
+    /// Cells whose pressure was raised to the floor (counted once per stage and cell).
     pub p_floor_hits: u64,
     /// Energy per unit area added by floors.
     pub floor_energy: f64,
     /// Mass per unit area added by floors.
     pub floor_mass: f64,
-    /// Faces where HLLD fell back to HLLE.
+    /// Faces where HLLD fell back to HLLE (summed over stages).
     pub hlld_fallbacks: u64,
     /// Time-integrated conserved fluxes into the domain through the left face
     /// (ρ, ρv_x, ρv_y, ρv_z, E, b̃_y, b̃_z).
@@ -31,13 +40,80 @@ pub struct StepReport {
 pub struct MhdSolver {
     config: SolverConfig,
     grid: Grid,
+    gas: Gas,
+    eps_deg: f64,
+    /// Primitive state per storage cell.
+    prim: Vec<[f64; 7]>,
+    /// Reconstructed state at the right edge (x_{j+1/2}⁻) of cell j.
+    w_plus: Vec<[f64; 7]>,
+    /// Reconstructed state at the left edge (x_{j−1/2}⁺) of cell j.
+    w_minus: Vec<[f64; 7]>,
+    /// flux[j] = flux through face j + 1/2.
+    flux: Vec<[f64; 7]>,
+    /// Copy of the state at the start of the step (7 arrays, storage length).
+    u0: [Vec<f64>; 7],
+}
+
+/// Stage coefficients (a, w): U ← a U⁰ + (1 − a)(U + Δt L(U)); w is the weight of the stage's
+/// fluxes in the final update (Shu & Osher 1988).
+const RK2: [(f64, f64); 2] = [(0.0, 0.5), (0.5, 0.5)];
+const RK3: [(f64, f64); 3] = [(0.0, 1.0 / 6.0), (0.75, 1.0 / 6.0), (1.0 / 3.0, 2.0 / 3.0)];
+
+#[inline(always)]
+fn limit(lim: Limiter, a: f64, b: f64) -> f64 {
+    match lim {
+        Limiter::Minmod => {
+            if a * b <= 0.0 {
+                0.0
+            } else if a.abs() < b.abs() {
+                a
+            } else {
+                b
+            }
+        }
+        Limiter::VanLeer => {
+            let ab = a * b;
+            if ab <= 0.0 {
+                0.0
+            } else {
+                2.0 * ab / (a + b)
+            }
+        }
+        Limiter::Mc => {
+            if a * b <= 0.0 {
+                0.0
+            } else {
+                let m = (2.0 * a.abs()).min(2.0 * b.abs()).min(0.5 * (a + b).abs());
+                m.copysign(a)
+            }
+        }
+    }
 }
 
 impl MhdSolver {
     /// Validates `config` and allocates scratch for `grid`.
     pub fn new(config: SolverConfig, grid: Grid) -> Result<Self, MhdError> {
         config.validate()?;
-        Ok(Self { config, grid })
+        if grid.ng < Grid::GHOSTS {
+            return Err(MhdError::InvalidConfig {
+                key: "ng",
+                value: grid.ng.to_string(),
+                allowed: "at least Grid::GHOSTS = 2 ghost cells",
+            });
+        }
+        let len = grid.len();
+        let z = vec![[0.0; 7]; len];
+        Ok(Self {
+            config,
+            grid,
+            gas: Gas::new(&config.eos),
+            eps_deg: HLLD_DEGENERACY_EPS,
+            prim: z.clone(),
+            w_plus: z.clone(),
+            w_minus: z.clone(),
+            flux: z,
+            u0: std::array::from_fn(|_| vec![0.0; len]),
+        })
     }
 
     /// The configuration.
@@ -50,18 +126,356 @@ impl MhdSolver {
         &self.grid
     }
 
+    /// Sets ε_deg of the HLLD degeneracy test (default [`HLLD_DEGENERACY_EPS`] = 1e-12).
+    pub fn set_hlld_degeneracy_eps(&mut self, eps: f64) -> Result<(), MhdError> {
+        if !(eps.is_finite() && eps > 0.0 && eps < 1.0) {
+            return Err(MhdError::InvalidConfig {
+                key: "hlld_degeneracy_eps",
+                value: eps.to_string(),
+                allowed: "a finite number with 0 < eps < 1",
+            });
+        }
+        self.eps_deg = eps;
+        Ok(())
+    }
+
+    fn check_state(&self, state: &State) -> Result<(), MhdError> {
+        let contiguous = [
+            &state.rho, &state.mx, &state.my, &state.mz, &state.en, &state.by, &state.bz,
+        ]
+        .iter()
+        .all(|a| a.len() == self.grid.len() && a.as_slice().is_some());
+        if state.grid != self.grid || !contiguous {
+            return Err(MhdError::InvalidConfig {
+                key: "state.grid",
+                value: format!("{:?}", state.grid),
+                allowed:
+                    "the grid the solver was created with (contiguous arrays of length grid.len())",
+            });
+        }
+        Ok(())
+    }
+
     /// Fills the ghost cells of `state` according to the boundary conditions.
-    pub fn apply_boundaries(&self, _state: &mut State) {
-        todo!("MHD core")
+    ///
+    /// Periodic: copies from the other end. Outflow: zero gradient (copy of the edge cell).
+    /// Reflecting: mirror image with ρv_x reversed (b̃_y, b̃_z, E copied; common practice for a
+    /// wall; with b̃_x ≠ 0 the wall is not a perfect conductor). Inflow: the fixed primitive
+    /// state (isothermal: its p is ignored), with the state's b̃_x.
+    pub fn apply_boundaries(&self, state: &mut State) {
+        let g = self.grid;
+        let (ng, n) = (g.ng, g.n);
+        let eos = self.config.eos;
+        let len = g.len();
+        for (side, bc) in [
+            (0u8, self.config.boundaries.left),
+            (1u8, self.config.boundaries.right),
+        ] {
+            for k in 0..ng {
+                // ghost index and its source
+                let (ghost, src_per, src_out, src_ref) = if side == 0 {
+                    let gh = ng - 1 - k;
+                    (gh, gh + n, ng, ng + k)
+                } else {
+                    let gh = ng + n + k;
+                    (gh, gh - n, ng + n - 1, ng + n - 1 - k)
+                };
+                let src_per = src_per.min(len - 1);
+                let src_ref = src_ref.min(len - 1);
+                match bc {
+                    Boundary::Periodic => copy_cell(state, src_per, ghost, 1.0),
+                    Boundary::Outflow => copy_cell(state, src_out, ghost, 1.0),
+                    Boundary::Reflecting => copy_cell(state, src_ref, ghost, -1.0),
+                    Boundary::Inflow(w) => state.set_primitive(ghost, &w, &eos),
+                }
+            }
+        }
     }
 
     /// Largest stable time step: cfl · Δx / max(|v_x| + c_f) over interior cells.
-    pub fn max_dt(&self, _state: &State) -> f64 {
-        todo!("MHD core")
+    /// Returns `f64::INFINITY` for a state without any signal speed (impossible for ρ, p > 0).
+    pub fn max_dt(&self, state: &State) -> f64 {
+        let gas = self.gas;
+        let bx = state.bx;
+        let r = self.grid.interior();
+        let rho = &state.rho.as_slice().expect("contiguous")[r.clone()];
+        let mx = &state.mx.as_slice().expect("contiguous")[r.clone()];
+        let my = &state.my.as_slice().expect("contiguous")[r.clone()];
+        let mz = &state.mz.as_slice().expect("contiguous")[r.clone()];
+        let en = &state.en.as_slice().expect("contiguous")[r.clone()];
+        let by = &state.by.as_slice().expect("contiguous")[r.clone()];
+        let bz = &state.bz.as_slice().expect("contiguous")[r];
+        let mut smax: f64 = 0.0;
+        for i in 0..rho.len() {
+            let d = rho[i];
+            let inv = 1.0 / d;
+            let (u, v, w) = (mx[i] * inv, my[i] * inv, mz[i] * inv);
+            let p = if gas.iso {
+                gas.cs2 * d
+            } else {
+                gas.gm1
+                    * (en[i]
+                        - 0.5 * d * (u * u + v * v + w * w)
+                        - 0.5 * (bx * bx + by[i] * by[i] + bz[i] * bz[i]))
+            };
+            let a2 = gas.a2(d, p.max(0.0));
+            let s = u.abs() + fast2(a2, d, bx, by[i], bz[i]).sqrt();
+            smax = smax.max(s);
+        }
+        if smax > 0.0 && smax.is_finite() {
+            self.config.cfl * self.grid.dx() / smax
+        } else if smax.is_nan() {
+            0.0
+        } else {
+            f64::INFINITY
+        }
     }
 
     /// Advances `state` by `dt` (one full multi-stage step).
-    pub fn step(&mut self, _state: &mut State, _dt: f64) -> Result<StepReport, MhdError> {
-        todo!("MHD core")
+    ///
+    /// Errors if `dt` is not finite and positive, if the state does not belong to the solver's
+    /// grid, or if a non-finite state appears (floors cannot repair a NaN).
+    pub fn step(&mut self, state: &mut State, dt: f64) -> Result<StepReport, MhdError> {
+        if !(dt.is_finite() && dt > 0.0) {
+            return Err(MhdError::InvalidConfig {
+                key: "dt",
+                value: dt.to_string(),
+                allowed: "a finite number > 0",
+            });
+        }
+        self.check_state(state)?;
+        let mut rep = StepReport::default();
+        // Save U⁰.
+        {
+            let arrs = state_slices(state);
+            for (dst, src) in self.u0.iter_mut().zip(arrs.iter()) {
+                dst.copy_from_slice(src);
+            }
+        }
+        let stages: &[(f64, f64)] = match self.config.integrator {
+            Integrator::SspRk2 => &RK2,
+            Integrator::SspRk3 => &RK3,
+        };
+        let ns = stages.len();
+        for (s, &(a, w)) in stages.iter().enumerate() {
+            // Factor with which a change made at the end of this stage enters U^{n+1}.
+            let carry: f64 = stages[s + 1..ns].iter().map(|&(a2, _)| 1.0 - a2).product();
+            self.apply_boundaries(state);
+            self.fluxes(state, &mut rep)?;
+            self.update(state, a, dt);
+            // Boundary fluxes, weighted by the stage weight.
+            let lf = self.flux[self.grid.ng - 1];
+            let rf = self.flux[self.grid.ng + self.grid.n - 1];
+            for k in 0..7 {
+                rep.inflow_left[k] += w * dt * lf[k];
+                rep.inflow_right[k] -= w * dt * rf[k];
+            }
+            self.floors(state, carry, &mut rep)?;
+        }
+        Ok(rep)
     }
+
+    /// Primitives, reconstruction and Riemann fluxes at the n + 1 interior faces.
+    fn fluxes(&mut self, state: &State, rep: &mut StepReport) -> Result<(), MhdError> {
+        let gas = self.gas;
+        let bx = state.bx;
+        let bx2h = 0.5 * bx * bx;
+        let len = self.grid.len();
+        let ng = self.grid.ng;
+        let n = self.grid.n;
+        {
+            let [rho, mx, my, mz, en, by, bz] = state_slices(state);
+            let prim = &mut self.prim[..len];
+            for i in 0..len {
+                let d = rho[i];
+                let inv = 1.0 / d;
+                let (u, v, w) = (mx[i] * inv, my[i] * inv, mz[i] * inv);
+                let p = if gas.iso {
+                    gas.cs2 * d
+                } else {
+                    gas.gm1
+                        * (en[i]
+                            - 0.5 * d * (u * u + v * v + w * w)
+                            - bx2h
+                            - 0.5 * (by[i] * by[i] + bz[i] * bz[i]))
+                };
+                prim[i] = [d, u, v, w, p, by[i], bz[i]];
+            }
+        }
+        // Reconstruction for cells ng−1 ..= ng+n (the neighbours of the interior faces).
+        let (lo, hi) = (ng - 1, ng + n);
+        match self.config.reconstruction {
+            Reconstruction::FirstOrder | Reconstruction::PlmCharacteristic(_) => {
+                for j in lo..=hi {
+                    self.w_plus[j] = self.prim[j];
+                    self.w_minus[j] = self.prim[j];
+                }
+            }
+            Reconstruction::Plm(lim) => {
+                let rho_min = self.config.floors.rho_min;
+                let p_min = self.config.floors.p_min;
+                let prim = &self.prim[..len];
+                let wp = &mut self.w_plus[..len];
+                let wm = &mut self.w_minus[..len];
+                for j in lo..=hi {
+                    let (a, c, b) = (&prim[j - 1], &prim[j], &prim[j + 1]);
+                    let mut dw = [0.0; 7];
+                    for k in 0..7 {
+                        dw[k] = 0.5 * limit(lim, c[k] - a[k], b[k] - c[k]);
+                    }
+                    if gas.iso {
+                        dw[4] = gas.cs2 * dw[0];
+                    }
+                    let mut p = [0.0; 7];
+                    let mut m = [0.0; 7];
+                    for k in 0..7 {
+                        p[k] = c[k] + dw[k];
+                        m[k] = c[k] - dw[k];
+                    }
+                    // Positivity: drop to first order if a face ρ or p would be below the floor.
+                    if p[0] <= rho_min
+                        || m[0] <= rho_min
+                        || (!gas.iso && (p[4] <= p_min || m[4] <= p_min))
+                    {
+                        wp[j] = *c;
+                        wm[j] = *c;
+                    } else {
+                        wp[j] = p;
+                        wm[j] = m;
+                    }
+                }
+            }
+        }
+        // Riemann problems at faces j + 1/2, j = ng−1 ..= ng+n−1.
+        let p_floor = self.config.floors.p_min;
+        let eps = self.eps_deg;
+        let use_hlld = matches!(self.config.riemann, RiemannKind::Hlld) && !gas.iso;
+        let wp = &self.w_plus[..len];
+        let wm = &self.w_minus[..len];
+        let flux = &mut self.flux[..len];
+        let mut fallbacks = 0u64;
+        for j in lo..hi {
+            let (l, r) = (&wp[j], &wm[j + 1]);
+            flux[j] = if use_hlld {
+                match hlld(l, r, bx, &gas, p_floor, eps) {
+                    Some(f) => f,
+                    None => {
+                        fallbacks += 1;
+                        hlle(l, r, bx, &gas)
+                    }
+                }
+            } else {
+                hlle(l, r, bx, &gas)
+            };
+        }
+        rep.hlld_fallbacks += fallbacks;
+        Ok(())
+    }
+
+    /// U ← a U⁰ + (1 − a)(U − Δt/Δx (F_{j+1/2} − F_{j−1/2})) on the interior.
+    fn update(&mut self, state: &mut State, a: f64, dt: f64) {
+        let dtdx = dt / self.grid.dx();
+        let r = self.grid.interior();
+        let b = 1.0 - a;
+        let iso = self.gas.iso;
+        let arrs = state_slices_mut(state);
+        for (k, arr) in arrs.into_iter().enumerate() {
+            if iso && k == 4 {
+                continue;
+            }
+            let u0 = &self.u0[k][r.clone()];
+            let fl = &self.flux[r.start - 1..r.end - 1];
+            let fr = &self.flux[r.clone()];
+            let u = &mut arr[r.clone()];
+            if a == 0.0 {
+                for ((u, fl), fr) in u.iter_mut().zip(fl).zip(fr) {
+                    *u -= dtdx * (fr[k] - fl[k]);
+                }
+            } else {
+                for (((u, u0), fl), fr) in u.iter_mut().zip(u0).zip(fl).zip(fr) {
+                    *u = a * u0 + b * (*u - dtdx * (fr[k] - fl[k]));
+                }
+            }
+        }
+    }
+
+    /// Density and pressure floors on the interior; every hit is counted and its mass/energy
+    /// (weighted by `carry`) reported.
+    fn floors(
+        &mut self,
+        state: &mut State,
+        carry: f64,
+        rep: &mut StepReport,
+    ) -> Result<(), MhdError> {
+        let gas = self.gas;
+        let bx = state.bx;
+        let dx = self.grid.dx();
+        let (rho_min, p_min) = (self.config.floors.rho_min, self.config.floors.p_min);
+        let grid = self.grid;
+        let [rho, mx, my, mz, en, by, bz] = state_slices_mut(state);
+        for j in grid.interior() {
+            let mut d = rho[j];
+            let vals = [d, mx[j], my[j], mz[j], en[j], by[j], bz[j]];
+            if vals.iter().any(|x| !x.is_finite()) {
+                return Err(MhdError::Unphysical {
+                    cell: j - grid.ng,
+                    x: grid.x_center(j),
+                    what: format!("non-finite conserved state {vals:?}"),
+                });
+            }
+            if d < rho_min {
+                rep.rho_floor_hits += 1;
+                rep.floor_mass += carry * (rho_min - d) * dx;
+                d = rho_min;
+                rho[j] = d;
+            }
+            if !gas.iso {
+                let kin = 0.5 * (mx[j] * mx[j] + my[j] * my[j] + mz[j] * mz[j]) / d;
+                let mag = 0.5 * (bx * bx + by[j] * by[j] + bz[j] * bz[j]);
+                let p = gas.gm1 * (en[j] - kin - mag);
+                if p < p_min {
+                    let de = (p_min - p) * gas.inv_gm1;
+                    rep.p_floor_hits += 1;
+                    rep.floor_energy += carry * de * dx;
+                    en[j] += de;
+                }
+            }
+        }
+        Ok(())
+    }
+}
+
+/// Copies storage cell `src` to `dst`; `sign_vx` multiplies ρv_x.
+fn copy_cell(s: &mut State, src: usize, dst: usize, sign_vx: f64) {
+    s.rho[dst] = s.rho[src];
+    s.mx[dst] = sign_vx * s.mx[src];
+    s.my[dst] = s.my[src];
+    s.mz[dst] = s.mz[src];
+    s.en[dst] = s.en[src];
+    s.by[dst] = s.by[src];
+    s.bz[dst] = s.bz[src];
+}
+
+fn state_slices(s: &State) -> [&[f64]; 7] {
+    [
+        s.rho.as_slice().expect("contiguous State array"),
+        s.mx.as_slice().expect("contiguous State array"),
+        s.my.as_slice().expect("contiguous State array"),
+        s.mz.as_slice().expect("contiguous State array"),
+        s.en.as_slice().expect("contiguous State array"),
+        s.by.as_slice().expect("contiguous State array"),
+        s.bz.as_slice().expect("contiguous State array"),
+    ]
+}
+
+fn state_slices_mut(s: &mut State) -> [&mut [f64]; 7] {
+    [
+        s.rho.as_slice_mut().expect("contiguous State array"),
+        s.mx.as_slice_mut().expect("contiguous State array"),
+        s.my.as_slice_mut().expect("contiguous State array"),
+        s.mz.as_slice_mut().expect("contiguous State array"),
+        s.en.as_slice_mut().expect("contiguous State array"),
+        s.by.as_slice_mut().expect("contiguous State array"),
+        s.bz.as_slice_mut().expect("contiguous State array"),
+    ]
 }

@@ -97,7 +97,15 @@ impl State {
             }
             Eos::Isothermal { cs } => cs * cs * rho,
         };
-        Primitive { rho, vx, vy, vz, p, by, bz }
+        Primitive {
+            rho,
+            vx,
+            vy,
+            vz,
+            p,
+            by,
+            bz,
+        }
     }
 
     /// Sum over interior cells of each conserved variable times Δx, in the order
@@ -106,6 +114,14 @@ impl State {
         let dx = self.grid.dx();
         let r = self.grid.interior();
         let s = |a: &Array1<f64>| a.slice(ndarray::s![r.clone()]).sum() * dx;
-        [s(&self.rho), s(&self.mx), s(&self.my), s(&self.mz), s(&self.en), s(&self.by), s(&self.bz)]
+        [
+            s(&self.rho),
+            s(&self.mx),
+            s(&self.my),
+            s(&self.mz),
+            s(&self.en),
+            s(&self.by),
+            s(&self.bz),
+        ]
     }
 }
