@@ -9,6 +9,7 @@ use serde::Serialize;
 pub mod mhd_checks;
 pub mod cr_checks;
 pub mod damping_checks;
+pub mod reference;
 
 /// Outcome of one check. Serialised with exactly the keys
 /// `name, source, measured, expected, tolerance, pass`.
