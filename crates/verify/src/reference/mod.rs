@@ -14,6 +14,7 @@
 
 pub mod bessel;
 pub mod complex;
+pub mod dispersion;
 pub mod quad;
 pub mod telegraph;
 
@@ -101,7 +102,6 @@ pub(crate) fn finite(key: &'static str, value: f64) -> Result<f64, RefError> {
 }
 
 /// Checks an adiabatic index is finite and > 1.
-#[allow(dead_code)]
 pub(crate) fn adiabatic(key: &'static str, value: f64) -> Result<f64, RefError> {
     if value.is_finite() && value > 1.0 {
         Ok(value)
