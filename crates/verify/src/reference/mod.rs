@@ -16,6 +16,7 @@ pub mod bessel;
 pub mod complex;
 pub mod dispersion;
 pub mod quad;
+pub mod riemann;
 pub mod telegraph;
 
 use std::fmt;
