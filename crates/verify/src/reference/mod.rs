@@ -15,6 +15,7 @@
 pub mod bessel;
 pub mod complex;
 pub mod dispersion;
+pub mod drift;
 pub mod quad;
 pub mod riemann;
 pub mod telegraph;
