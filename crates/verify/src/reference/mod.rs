@@ -13,6 +13,7 @@
 //! * [`bessel`], [`quad`], [`complex`] — the numerical building blocks (own implementations).
 
 pub mod bessel;
+pub mod bottleneck;
 pub mod complex;
 pub mod dispersion;
 pub mod drift;
