@@ -20,6 +20,7 @@ pub mod drift;
 pub mod quad;
 pub mod riemann;
 pub mod telegraph;
+pub mod topha;
 
 use std::fmt;
 
