@@ -115,7 +115,7 @@ mod tests {
             0.0f64, 1e-3, 0.1, 0.5, 1.0, 2.0, 3.75, 5.0, 10.0, 20.0, 24.9, 25.1, 30.0, 50.0, 100.0,
             700.0, 1e4,
         ] {
-            let m = 400 + (4.0 * (x as f64).sqrt() * 20.0) as usize;
+            let m = 400 + (4.0 * x.sqrt() * 20.0) as usize;
             let r0 = integral_rep(0, x, m);
             let r1 = integral_rep(1, x, m);
             // the trapezoid reference sums m terms: its own rounding grows with m
