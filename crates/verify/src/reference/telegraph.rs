@@ -129,9 +129,9 @@ pub fn telegraph_gaussian(
     if l == 0.0 {
         return Ok(fronts);
     }
-    // Integrate over y ∈ [−l, l] ∩ [x − 40σ0, x + 40σ0] (Gaussian negligible outside).
-    let lo = (-l).max(x - 40.0 * sigma0);
-    let hi = l.min(x + 40.0 * sigma0);
+    // Integrate over y ∈ [−l, l] ∩ [x − 12σ0, x + 12σ0] (Gaussian < e^{−72} of its peak outside).
+    let lo = (-l).max(x - 12.0 * sigma0);
+    let hi = l.min(x + 12.0 * sigma0);
     if hi <= lo {
         return Ok(fronts);
     }
