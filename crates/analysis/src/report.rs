@@ -1,7 +1,7 @@
 //! Human-readable tables and JSON for compare and convergence results.
 
 use crate::compare::{CompareReport, Norm, ToleranceKind};
-use crate::convergence::ConvergenceSeries;
+use crate::convergence::{ConvergenceKind, ConvergenceSeries};
 use serde::{Deserialize, Serialize};
 
 /// Formats rows as a left-aligned table with two spaces between columns (no trailing blanks).
@@ -163,6 +163,12 @@ impl ConvergenceReport {
                     "; Richardson error estimate of the finest {}",
                     sci(est)
                 ));
+            }
+            if s.kind == ConvergenceKind::SelfConvergence {
+                fit.push_str(
+                    "\n  (self-convergence: each error is the difference between the run at N \
+                     and the next finer run, measured on the N grid)",
+                );
             }
             rows.push(vec![String::new(), fit]);
         }
