@@ -12,7 +12,7 @@ pub struct CheckReport {
     pub cells: usize,
     /// Cell width, cm.
     pub dx: f64,
-    /// Largest fast magnetosonic speed c_f over the grid, cm/s.
+    /// Largest fast magnetosonic speed c_f over the grid and boundary states, cm/s.
     pub max_fast_speed: f64,
     /// Largest Alfvén speed |B_x|/√(4πρ), cm/s.
     pub max_alfven_speed: f64,
@@ -22,7 +22,8 @@ pub struct CheckReport {
     pub max_signal_speed: f64,
     /// Initial time step, s.
     pub initial_dt: f64,
-    /// t_end / initial Δt, rounded up (Δt changes as the flow evolves: an estimate).
+    /// t_end / min(initial Δt, cfl Δx / max signal speed), rounded up (Δt changes as the flow
+    /// evolves: an estimate).
     pub estimated_steps: u64,
     /// Measured wall time per cell update, s (from `timing_steps` steps).
     pub seconds_per_cell_update: f64,
@@ -42,7 +43,8 @@ pub fn check_deck(deck: &Deck, text: &str) -> Result<CheckReport, DriverError> {
     let eos = sim.solver().config().eos;
     let st = sim.state();
     let (mut cf, mut ca, mut cs, mut sig) = (0.0f64, 0.0f64, 0.0f64, 0.0f64);
-    for j in st.grid.interior() {
+    // Ghost cells are included so that an inflow state counts (it enters the domain).
+    for j in 0..st.grid.len() {
         let w = st.primitive(j, &eos);
         let f = sluice_mhd::fast_speed(&w, st.bx, &eos);
         cf = cf.max(f);
@@ -58,7 +60,10 @@ pub fn check_deck(deck: &Deck, text: &str) -> Result<CheckReport, DriverError> {
         });
     }
     let t_end = sim.t_end();
-    let est_steps = (t_end / dt0).ceil().max(1.0) as u64;
+    // The step the fastest signal anywhere (inflow included) allows; the estimate uses the
+    // smaller of that and the solver's step.
+    let dt_sig = sim.solver().config().cfl * st.grid.dx() / sig;
+    let est_steps = (t_end / dt0.min(dt_sig)).ceil().max(1.0) as u64;
     let n = st.grid.n;
     let dx = st.grid.dx() * u.length;
     let start = Instant::now();
@@ -111,7 +116,7 @@ impl std::fmt::Display for CheckReport {
         writeln!(f, "initial dt               {:.6e} s", self.initial_dt)?;
         writeln!(
             f,
-            "estimated steps          {} (t_end / initial dt)",
+            "estimated steps          {} (t_end / initial dt, inflow included; dt varies)",
             self.estimated_steps
         )?;
         writeln!(

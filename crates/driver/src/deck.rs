@@ -201,17 +201,19 @@ pub struct GasSection {
     /// Mean molecular weight μ in atomic mass units (> 0); enables the temperature output.
     #[serde(default)]
     pub mean_molecular_weight: Option<f64>,
-    /// Density floor, g/cm³ (> 0). Every application is counted and reported.
-    #[serde(default = "default_floor")]
-    pub density_floor: f64,
-    /// Pressure floor, erg/cm³ (> 0). Every application is counted and reported.
-    #[serde(default = "default_floor")]
-    pub pressure_floor: f64,
+    /// Density floor, g/cm³ (> 0, below every initial density). Default: 1e-10 × the smallest
+    /// density of the background, regions and inflow states. Every application is counted.
+    #[serde(default)]
+    pub density_floor: Option<f64>,
+    /// Pressure floor, erg/cm³ (> 0, below every initial pressure). Default: 1e-10 × the
+    /// smallest pressure of those states (c_s² ρ for an isothermal gas). Every application is
+    /// counted.
+    #[serde(default)]
+    pub pressure_floor: Option<f64>,
 }
 
-fn default_floor() -> f64 {
-    1e-12
-}
+/// Default floors are this fraction of the smallest initial value (common practice).
+pub const DEFAULT_FLOOR_FRACTION: f64 = 1e-10;
 
 /// Riemann solver choice.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, Default)]
@@ -819,8 +821,12 @@ impl Deck {
         if let Some(mu) = gas.mean_molecular_weight {
             finite_pos("gas.mean_molecular_weight", mu)?;
         }
-        finite_pos("gas.density_floor", gas.density_floor)?;
-        finite_pos("gas.pressure_floor", gas.pressure_floor)?;
+        if let Some(f) = gas.density_floor {
+            finite_pos("gas.density_floor", f)?;
+        }
+        if let Some(f) = gas.pressure_floor {
+            finite_pos("gas.pressure_floor", f)?;
+        }
         // [mhd]
         let c = self.mhd.cfl;
         if !(c.is_finite() && c > 0.0 && c < 1.0) {
@@ -1005,6 +1011,25 @@ impl Deck {
                 ));
             }
         }
+        let (rho_min, p_min) = self.smallest_initial();
+        if let Some(f) = gas.density_floor {
+            if f >= rho_min {
+                return Err(DeckError::invalid(
+                    "gas.density_floor",
+                    f,
+                    format!("a floor below the smallest initial density ({rho_min:e} g/cm³)"),
+                ));
+            }
+        }
+        if let Some(f) = gas.pressure_floor {
+            if f >= p_min {
+                return Err(DeckError::invalid(
+                    "gas.pressure_floor",
+                    f,
+                    format!("a floor below the smallest initial pressure ({p_min:e} erg/cm³)"),
+                ));
+            }
+        }
         // Reserved sections.
         for (name, sec, what) in [
             ("cosmic_rays", &self.cosmic_rays, "the cosmic-ray stage"),
@@ -1049,6 +1074,42 @@ impl Deck {
         finite(&format!("{key}.magnetic_field_y"), s.magnetic_field_y)?;
         finite(&format!("{key}.magnetic_field_z"), s.magnetic_field_z)?;
         Ok(())
+    }
+
+    fn states(&self) -> impl Iterator<Item = GasState> + '_ {
+        self.init
+            .background
+            .iter()
+            .copied()
+            .chain(self.init.regions.iter().map(|r| r.state()))
+            .chain(self.boundaries.left_state.iter().copied())
+            .chain(self.boundaries.right_state.iter().copied())
+    }
+
+    /// Smallest density (g/cm³) and pressure (erg/cm³) of the background, region and inflow
+    /// states (profiles and waves not included).
+    pub fn smallest_initial(&self) -> (f64, f64) {
+        let cs2 = self.gas.isothermal_sound_speed.map(|c| c * c);
+        self.states()
+            .fold((f64::INFINITY, f64::INFINITY), |(r, p), s| {
+                let ps = match cs2 {
+                    Some(c2) => c2 * s.density,
+                    None => s.pressure.unwrap_or(f64::INFINITY),
+                };
+                (r.min(s.density), p.min(ps))
+            })
+    }
+
+    /// Density floor (g/cm³) and pressure floor (erg/cm³) in force: the deck's values or the
+    /// defaults ([`DEFAULT_FLOOR_FRACTION`] × smallest initial value).
+    pub fn floors(&self) -> (f64, f64) {
+        let (r, p) = self.smallest_initial();
+        (
+            self.gas.density_floor.unwrap_or(DEFAULT_FLOOR_FRACTION * r),
+            self.gas
+                .pressure_floor
+                .unwrap_or(DEFAULT_FLOOR_FRACTION * p),
+        )
     }
 
     /// Output times in seconds, excluding the initial output at t = 0 and ending at `t_end`.
@@ -1254,6 +1315,19 @@ pressure = 0.1
         let e = err_of(&format!("{base}width = 0.1\nwavelength = 1\n"), &[]);
         assert_eq!(e.key(), Some("init.profiles[0].wavelength"), "{e}");
         assert!(parse_deck(&format!("{base}width = 0.1\n"), &[]).is_ok());
+    }
+
+    #[test]
+    fn floors_default_relative_and_must_be_below_the_state() {
+        let d = parse_deck(SOD, &[]).unwrap();
+        assert_eq!(
+            d.floors(),
+            (0.125 * DEFAULT_FLOOR_FRACTION, 0.1 * DEFAULT_FLOOR_FRACTION)
+        );
+        let e = err_of(SOD, &["gas.density_floor=0.2"]);
+        assert_eq!(e.key(), Some("gas.density_floor"), "{e}");
+        let e = err_of(SOD, &["gas.pressure_floor=-1"]);
+        assert_eq!(e.key(), Some("gas.pressure_floor"), "{e}");
     }
 
     #[test]

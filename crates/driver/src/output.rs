@@ -202,9 +202,9 @@ impl LedgerCsv {
                     .map_err(io)?
             }
         };
-        text.push_str(&format!("{:.17e},{}", l.time, l.step));
+        text.push_str(&format!("{:e},{}", l.time, l.step));
         for e in &l.entries {
-            text.push_str(&format!(",{:.17e}", e.value));
+            text.push_str(&format!(",{:e}", e.value));
         }
         text.push('\n');
         f.write_all(text.as_bytes()).map_err(io)?;

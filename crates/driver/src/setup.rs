@@ -87,9 +87,12 @@ pub fn solver_config(deck: &Deck, u: &Units) -> SolverConfig {
             IntegratorChoice::Rk3 => Integrator::SspRk3,
         },
         cfl: m.cfl,
-        floors: Floors {
-            rho_min: deck.gas.density_floor / u.density,
-            p_min: deck.gas.pressure_floor / u.pressure(),
+        floors: {
+            let (rho_min, p_min) = deck.floors();
+            Floors {
+                rho_min: rho_min / u.density,
+                p_min: p_min / u.pressure(),
+            }
         },
         boundaries: BoundaryPair {
             left: side(deck.boundaries.left, &deck.boundaries.left_state),
