@@ -266,6 +266,80 @@ mod tests {
         assert!((general - kp).abs() < 1e-13 * kp, "{general} vs {kp}");
     }
 
+    /// physics-detail §3.5 [computed] WNM rows (n_H = 0.5, T = 8e3 K, x_i = 0.05, B = 3 μG,
+    /// ε_c = 1 eV cm⁻³, L_P = 1 kpc; ions = protons). Regression of the formula chain: the
+    /// rate coefficients ⟨σv⟩_in = 8.4e-9 (T/1e4)^0.4 and C_nll = √π/8 (both from memory,
+    /// configurable) enter only as inputs.
+    #[test]
+    fn spec_table_3_5_wnm_rows() {
+        let (n_h, t, x_i, b, e_c, l_p) = (0.5, 8e3, 0.05, 3e-6, 1.602_176_634e-12, 3.0857e21);
+        let v_a = b / (4.0 * PI * x_i * n_h * M_P).sqrt();
+        assert!((v_a / 1e5 - 41.0).abs() < 0.5);
+        let grad = -(e_c / 3.0) / l_p;
+        let inp = DriftInputs {
+            grad_pc: grad,
+            v_a,
+            omega: 6.55e-3 * 3.0,
+            e_b: b * b / (8.0 * PI),
+            alpha_nu: 3.0 * PI / 16.0,
+            c: C_LIGHT,
+        };
+        let h = 4.0 / 3.0 * e_c;
+        // ion–neutral: Γ = ν_in/2 = 1.8e-9, ε_+/e_B = 5.5e-7, v_st − v_A = 115 km/s
+        let nu_in = (1.0 - x_i) * n_h * 8.4e-9 * (t / 1e4f64).powf(0.4);
+        let r = steady_drift(&inp, &DampingLaw::linear(nu_in / 2.0)).unwrap();
+        assert!((nu_in / 2.0 - 1.8e-9).abs() < 0.05e-9);
+        assert!((r.wave_energy / inp.e_b - 5.5e-7).abs() < 0.05e-7);
+        assert!((r.excess_speed(h).unwrap() / 1e5 - 115.0).abs() < 0.5);
+        // NLL only: Γ = 9e-12, ε_+/e_B = 1.1e-4, v_st − v_A = 0.57 km/s
+        let k_b = 1.380_649e-16; // Boltzmann constant [erg K⁻¹] (SI 2019 exact)
+        let v_i = (k_b * t / M_P).sqrt();
+        let k = 1.0 / (3.34e12 / 3.0);
+        let c_nll = PI.sqrt() / 8.0;
+        let r = steady_drift(&inp, &DampingLaw::nll(c_nll, k, v_i, inp.e_b)).unwrap();
+        let gamma_nll = c_nll * k * v_i * r.wave_energy / (2.0 * inp.e_b);
+        assert!((gamma_nll - 9e-12).abs() < 0.5e-12);
+        assert!((r.wave_energy / inp.e_b - 1.1e-4).abs() < 0.05e-4);
+        assert!((r.excess_speed(h).unwrap() / 1e5 - 0.57).abs() < 0.005);
+    }
+
+    /// physics-detail §3.5 [computed], remaining rows (ions = protons: ρ_i = x_i n_H m_p):
+    /// (n_H, T, x_i, B/μG, ε_c/eV cm⁻³, L_P/kpc, ion–neutral?, ε_+/e_B, v_st − v_A [km/s]).
+    #[test]
+    fn spec_table_3_5_other_rows() {
+        let rows = [
+            (0.1, 8e3, 1.0, 3.0, 1.0, 1.0, false, 7.9e-5, 0.8),
+            (1e-3, 1e6, 1.0, 1.0, 0.1, 10.0, false, 2.2e-5, 0.85),
+            (0.1, 1e4, 0.5, 1.0, 0.1, 1.0, true, 1.0e-6, 187.0),
+        ];
+        for (n_h, t, x_i, b_mu, e_ev, l_kpc, ion_neutral, eps_rel, excess) in rows {
+            let (b, e_c) = (b_mu * 1e-6, e_ev * 1.602_176_634e-12);
+            let v_a = b / (4.0 * PI * x_i * n_h * M_P).sqrt();
+            let inp = DriftInputs {
+                grad_pc: -(e_c / 3.0) / (l_kpc * 3.0857e21),
+                v_a,
+                omega: 6.55e-3 * b_mu,
+                e_b: b * b / (8.0 * PI),
+                alpha_nu: 3.0 * PI / 16.0,
+                c: C_LIGHT,
+            };
+            let law = if ion_neutral {
+                DampingLaw::linear(0.5 * (1.0 - x_i) * n_h * 8.4e-9 * (t / 1e4f64).powf(0.4))
+            } else {
+                let v_i = (1.380_649e-16 * t / M_P).sqrt();
+                DampingLaw::nll(PI.sqrt() / 8.0, b_mu / 3.34e12, v_i, inp.e_b)
+            };
+            let r = steady_drift(&inp, &law).unwrap();
+            let ex = r.excess_speed(4.0 / 3.0 * e_c).unwrap() / 1e5;
+            assert!(
+                (r.wave_energy / inp.e_b - eps_rel).abs() < 0.02 * eps_rel,
+                "{n_h}: {}",
+                r.wave_energy / inp.e_b
+            );
+            assert!((ex - excess).abs() < 0.02 * excess, "{n_h}: {ex}");
+        }
+    }
+
     #[test]
     fn bad_input() {
         let e = steady_drift(&inputs(0.0), &DampingLaw::linear(1.0)).unwrap_err();
