@@ -3,7 +3,9 @@
 #
 # 1. makes sure python3 can import h5py (the outside reader of our HDF5 snapshots,
 #    used by tests/h5py_read.rs), installing it from PyPI with pip if needed;
-# 2. runs `cargo test --workspace --release "$@"`.
+# 2. runs `cargo test --workspace --release "$@"`, doc-tests first and then the
+#    unit and integration tests, so the closing summary lines are those of real
+#    test binaries rather than of (often empty) doc-test runs.
 set -euo pipefail
 
 cd "$(dirname "${BASH_SOURCE[0]}")/.."
@@ -34,5 +36,7 @@ if ! python3 -c "import h5py" >/dev/null 2>&1; then
 fi
 say "using $(python3 -c 'import sys, h5py; print(f"python {sys.version.split()[0]}, h5py {h5py.__version__}, HDF5 {h5py.version.hdf5_version}")')"
 
-say "cargo test --workspace --release $*"
-exec cargo test --workspace --release "$@"
+say "cargo test --workspace --release --doc $*"
+cargo test --workspace --release --doc "$@"
+say "cargo test --workspace --release --lib --bins --tests $*"
+exec cargo test --workspace --release --lib --bins --tests "$@"
