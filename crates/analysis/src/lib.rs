@@ -15,6 +15,27 @@
 //! No file format other than text is read here: the driver reads Sluice's HDF5 snapshots and
 //! builds [`Profile`]s from the arrays. No unit conversion is done: both profiles must use
 //! the same units and the same coordinate.
+//!
+//! ```
+//! use sluice_analysis::{compare, parse_profile, CompareOptions, ReadOptions, Tolerance};
+//!
+//! let reference = "x density\n0.25 1.0\n0.75 2.0\n";
+//! // OTHER on a grid refined 2x (nested), cell averages, 1 % high in the second half.
+//! let other = "# x density\n0.125 1.0\n0.375 1.0\n0.625 2.02\n0.875 2.02\n";
+//! let opts = ReadOptions::default();
+//! let r = parse_profile(reference, "reference.txt", &opts)?;
+//! let o = parse_profile(other, "other.txt", &opts)?;
+//! let report = compare(&r, &o, &CompareOptions::default())?;
+//! let d = &report.fields[0];
+//! // L1 of the difference: (0.5·0 + 0.5·0.02) / 1 = 0.01; L1 of the reference: 1.5.
+//! assert!((d.absolute.l1 - 0.01).abs() < 1e-15);
+//! assert!((d.relative.l1.unwrap() - 0.01 / 1.5).abs() < 1e-15);
+//! assert!(report.pass); // relative L1 0.0067 <= 1e-2
+//! let strict = CompareOptions { tolerance: "linf:5e-3".parse::<Tolerance>()?, ..Default::default() };
+//! assert!(!compare(&r, &o, &strict)?.pass); // relative L∞ 0.02/2 = 0.01 > 5e-3
+//! println!("{}", report.to_table());
+//! # Ok::<(), sluice_analysis::AnalysisError>(())
+//! ```
 
 pub mod compare;
 pub mod convergence;

@@ -480,3 +480,108 @@ fn text_files_round_trip_through_the_reader_into_a_comparison() {
     assert!(rep.fields[0].absolute.linf < 1e-15, "{}", rep.to_table());
     assert!(rep.pass);
 }
+
+#[test]
+fn linear_interpolation_of_point_samples_converges_at_second_order() {
+    // OTHER: sin(2πx) sampled at N+1 points including both ends; reference: the exact
+    // function at the centres of 1000 cells (point samples). The interpolation error is
+    // h²|f''|/8 at most (common practice), so the L∞ error converges at order 2.
+    let reference = Profile::uniform("exact", Sampling::PointSample, 0.0, 1.0, 1000).unwrap();
+    let exact = reference
+        .centres()
+        .iter()
+        .map(|x| (2.0 * PI * x).sin())
+        .collect();
+    let reference = reference.with_field("u", exact).unwrap();
+    let pts: Vec<(usize, f64)> = [16usize, 32, 64, 128]
+        .iter()
+        .map(|&n| {
+            let xs: Vec<f64> = (0..=n).map(|i| i as f64 / n as f64).collect();
+            let us = xs.iter().map(|x| (2.0 * PI * x).sin()).collect();
+            let other = Profile::new("pts", Sampling::PointSample, xs, None)
+                .unwrap()
+                .with_field("u", us)
+                .unwrap();
+            let rep = compare(&reference, &other, &CompareOptions::default()).unwrap();
+            let linf = rep.fields[0].absolute.linf;
+            let bound = (2.0 * PI).powi(2) / (8.0 * (n * n) as f64);
+            assert!(linf <= bound && linf > 0.5 * bound, "{linf} vs {bound}");
+            (n, linf)
+        })
+        .collect();
+    let p = convergence_series("u (linf)", &pts)
+        .unwrap()
+        .fitted_order
+        .unwrap();
+    assert!((p - 2.0).abs() < 0.02, "{p}");
+}
+
+#[test]
+fn single_cell_comparison() {
+    let one = |v: f64, name: &str| {
+        Profile::new(name, Sampling::CellAverage, vec![0.5], Some(vec![0.0, 1.0]))
+            .unwrap()
+            .with_field("density", vec![v])
+            .unwrap()
+    };
+    let rep = compare(&one(2.0, "r"), &one(2.01, "o"), &CompareOptions::default()).unwrap();
+    assert_eq!(rep.compared_cells, 1);
+    let f = &rep.fields[0];
+    assert!((f.absolute.l1 - 0.01).abs() < 1e-15 && (f.absolute.linf - 0.01).abs() < 1e-15);
+    assert!((f.relative.l2.unwrap() - 0.005).abs() < 1e-15);
+    assert!(rep.pass);
+}
+
+/// A small deterministic generator (Knuth's MMIX LCG constants, from memory).
+struct Lcg(u64);
+impl Lcg {
+    fn next(&mut self) -> u64 {
+        self.0 = self
+            .0
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
+        self.0 >> 33
+    }
+}
+
+#[test]
+fn garbage_input_gives_errors_not_panics() {
+    // Text assembled from fragments that exercise every branch of the reader; each parse must
+    // return (Ok or Err), and every error message must name the source.
+    let pieces = [
+        "x", "density", ",", " ", "\t", "#", "\n", "1", "-2.5e3", "nan", "inf", "1D4", "\"",
+        "x_lo", "=", "0", "abc", ",,", "\n\n", "1e999",
+    ];
+    let mut rng = Lcg(12345);
+    let options = [
+        ReadOptions::default(),
+        ReadOptions {
+            columns: Some(parse_column_map("x=1,density=2").unwrap()),
+            sort: true,
+            sampling: Sampling::PointSample,
+            ..ReadOptions::default()
+        },
+        ReadOptions {
+            edges: Some(("x_lo".into(), "density".into())),
+            ..ReadOptions::default()
+        },
+    ];
+    let mut ok = 0;
+    for _ in 0..3000 {
+        let len = 1 + rng.next() % 40;
+        let text: String = (0..len)
+            .map(|_| pieces[(rng.next() % pieces.len() as u64) as usize])
+            .collect();
+        for opts in &options {
+            match parse_profile(&text, "fuzz.txt", opts) {
+                Ok(p) => {
+                    ok += 1;
+                    assert!(p.centres().windows(2).all(|w| w[0] < w[1]));
+                    let _ = compare(&p, &p, &CompareOptions::default());
+                }
+                Err(e) => assert!(e.to_string().contains("fuzz.txt"), "{e}"),
+            }
+        }
+    }
+    assert!(ok > 0, "no generated input parsed at all");
+}
