@@ -13,7 +13,7 @@ const SRC_HEAT: &str = "Heat kernel: e(x,t) = E0 (2π(σ0²+2κt))^-1/2 exp(−x
 const SRC_TELEGRAPH: &str = "Telegraph equation Green's function e_tt + 2a e_t = c_w² e_xx, a = c_r²/(6κ), c_w = c_r/√3 (Morse & Feshbach 1953, §7.4; physics-detail §4.3, table values G(0,0.5) = 0.39281, 0.31656 [computed]) convolved with the Gaussian initial profile";
 const SRC_FRONT: &str = "Finite signal speed of the telegraph equation: no energy beyond c_w t (c_w = c_r/√3) except the smearing of the initial Gaussian and of the scheme (Morse & Feshbach 1953, §7.4; physics-detail §4.3); c_r = 3, κ = 1, t = 0.5";
 const SRC_AP: &str = "Asymptotic preserving HLL flux in the diffusive limit (Jiang, Stone & Davis 2012, ApJS 199, 14; Jiang & Oh 2018, ApJ 854, 5): at κ/(c_r Δx) = 0.01 the measured diffusivity (σ² growth/2t of a Gaussian) may exceed κ by at most 5%";
-const SRC_STREAM: &str = "Pure streaming of a top hat [derived, physics-detail §4.4]: ε_plateau = ε0 (1 + v_a t/L)^(-4/3), x_front = L + v_a t; bound 2%";
+const SRC_STREAM: &str = "Pure streaming [derived, physics-detail §4.4]: top hat ε_plateau = ε0 (1 + v_a t/L)^(-4/3), x_front = L + v_a t (checked: total energy 2 x_front ε_plateau); smooth pulse: flat plateau ε0(x_p − v_a t) with dε_p/dt x_p = −(4/3) v_a ε_p, wings translated at v_a (checked: plateau value, speed of the level 0.05); strong-coupling model κ = 1e-3, c_r = 100 v_a, N = 600; bound 2%";
 const SRC_CONS: &str = "Total energy E + e_c + e_+ + e_− and momentum ρv + F/c_r² are conserved by the CR-gas system (Thomas & Pfrommer 2019, MNRAS 485, 2977; physics-detail §2.5): periodic box, 1000 steps, round-off bound 1e-12 relative";
 const SRC_GAL: &str = "Galilean invariance of the CR equations (physics-detail §2.2, exact up to O(u v/c_r²)): a streaming pulse in gas moving at u equals the static run shifted by u t; bound 2% L1 relative";
 const SRC_CRCONV: &str = "c_r convergence (physics-detail §7: results must be checked at 2 c_r): the profile changes by less than the stated bound when c_r is doubled";
@@ -28,8 +28,9 @@ pub fn checks() -> Vec<Check> {
         Check { name: "cr.telegraph.profile_l1_cr10", source: SRC_TELEGRAPH, run: telegraph_profile },
         Check { name: "cr.telegraph.no_signal_beyond_front", source: SRC_FRONT, run: telegraph_front },
         Check { name: "cr.diffusion.asymptotic_preserving", source: SRC_AP, run: ap_diffusion },
-        Check { name: "cr.streaming.plateau", source: SRC_STREAM, run: streaming_plateau },
+        Check { name: "cr.streaming.tophat_energy", source: SRC_STREAM, run: streaming_tophat_energy },
         Check { name: "cr.streaming.front_speed", source: SRC_STREAM, run: streaming_front },
+        Check { name: "cr.streaming.plateau_smooth_pulse", source: SRC_STREAM, run: streaming_plateau_smooth },
         Check { name: "cr.conservation.energy_1000_steps", source: SRC_CONS, run: conservation_energy },
         Check { name: "cr.conservation.momentum_1000_steps", source: SRC_CONS, run: conservation_momentum },
         Check { name: "cr.galilean.streaming_pulse", source: SRC_GAL, run: galilean },
@@ -280,7 +281,7 @@ fn streaming_params(c_r: f64) -> CrParams {
 pub fn streaming_run(n: usize, c_r: f64, u: f64, t: f64, smooth: bool) -> Result<(Vec<f64>, Vec<f64>, f64), String> {
     let half = 6.0;
     let grid = Grid::new(n, -half, half).map_err(|e| e.to_string())?;
-    let mut gas = uniform_gas(grid, 1e20, u, 1.0, 1.0);
+    let mut gas = uniform_gas(grid, 1e6, u, 1.0, 1.0);
     let mut s = CrSolver::new(streaming_params(c_r), grid).map_err(|e| e.to_string())?;
     let mut cr = CrState::zeros(&grid);
     for j in 0..grid.len() {
@@ -292,40 +293,25 @@ pub fn streaming_run(n: usize, c_r: f64, u: f64, t: f64, smooth: bool) -> Result
     Ok((grid.centers(), cr.e_c.as_slice().unwrap()[r].to_vec(), grid.dx()))
 }
 
-/// Position of the right front: where e_c falls through half the plateau value.
-fn right_front(x: &[f64], e: &[f64]) -> f64 {
+/// Position right of the maximum where e_c falls through `level`.
+fn right_level(x: &[f64], e: &[f64], level: f64) -> f64 {
     let n = x.len();
-    let mid = n / 2;
-    let half = 0.5 * e[mid];
-    for j in mid..n - 1 {
-        if e[j] >= half && e[j + 1] < half {
-            return x[j] + (e[j] - half) / (e[j] - e[j + 1]) * (x[j + 1] - x[j]);
+    for j in n / 2..n - 1 {
+        if e[j] >= level && e[j + 1] < level {
+            return x[j] + (e[j] - level) / (e[j] - e[j + 1]) * (x[j + 1] - x[j]);
         }
     }
     f64::NAN
 }
 
-fn streaming_plateau() -> CheckResult {
-    let name = "cr.streaming.plateau";
-    let t = 2.0;
-    match streaming_run(600, 30.0, 0.0, t, false) {
-        Ok((_, e, _)) => {
-            let exact = (1.0 + t).powf(-4.0 / 3.0);
-            let mid = e.len() / 2;
-            let p = 0.5 * (e[mid - 1] + e[mid]);
-            crate::rel_check(name, SRC_STREAM, p, exact, 0.02)
-        }
-        Err(w) => fail(name, SRC_STREAM, w),
-    }
-}
-
 fn streaming_front() -> CheckResult {
     let name = "cr.streaming.front_speed";
-    let r1 = streaming_run(600, 30.0, 0.0, 1.0, false);
-    let r2 = streaming_run(600, 30.0, 0.0, 3.0, false);
+    let r1 = streaming_run(600, CRS, 0.0, 1.0, true);
+    let r2 = streaming_run(600, CRS, 0.0, 2.0, true);
     match (r1, r2) {
         (Ok((x1, e1, _)), Ok((x2, e2, _))) => {
-            let speed = (right_front(&x2, &e2) - right_front(&x1, &e1)) / 2.0;
+            let speed = right_level(&x2, &e2, 0.05) - right_level(&x1, &e1, 0.05);
+
             crate::rel_check(name, SRC_STREAM, speed, 1.0, 0.02)
         }
         (Err(w), _) | (_, Err(w)) => fail(name, SRC_STREAM, w),
@@ -452,13 +438,19 @@ fn conservation_momentum() -> CheckResult {
 /// Steady state between fixed CR energy densities; returns the worst relative errors of
 /// (F − v_a h) and e_+ against §4.1 over the central half of the domain.
 pub fn drift_errors() -> Result<(f64, f64), String> {
-    let n = 200;
+    // With linear damping the local balances hold whenever the waves are in equilibrium
+    // (t ≫ 1/Γ); e_c itself then advects at v_a (the excess is gradient independent), so the
+    // relations are checked at t = 3 on the part of the domain the linear ramp still covers.
+    let n = 100;
     let grid = Grid::new(n, 0.0, 1.0).map_err(|e| e.to_string())?;
     let va = 0.1;
-    let mut gas = uniform_gas(grid, 1e12, 0.0, 1.0, va);
-    let gamma_d = 2.0;
-    let c_r = 10.0;
-    let (c, omega) = (10.0, 1e3);
+    let mut gas = uniform_gas(grid, 1e6, 0.0, 1.0, va);
+    let gamma_d = 20.0;
+    let (c_r, c) = (3.0, 3.0);
+    let eb = 0.5 * gas.bx * gas.bx;
+    let alpha = 3.0 * std::f64::consts::PI / 16.0;
+    let target_excess = 0.05;
+    let omega = 2.0 * gamma_d * c * c * eb / (alpha * va * target_excess);
     let p = CrParams {
         boundaries: CrBoundaryPair { left: CrBoundary::FixedEnergyDensity(2.0), right: CrBoundary::FixedEnergyDensity(1.0) },
         asymptotic_preserving: true,
@@ -466,19 +458,19 @@ pub fn drift_errors() -> Result<(f64, f64), String> {
     };
     let mut s = CrSolver::new(p, grid).map_err(|e| e.to_string())?;
     let mut cr = CrState::zeros(&grid);
-    let eb = 0.5 * gas.bx * gas.bx;
     for j in 0..grid.len() {
         let x = grid.x_center(j);
         cr.e_c[j] = 2.0 - x;
-        cr.e_plus[j] = 1e-4 * eb;
+        cr.f[j] = va * p.gamma_c * cr.e_c[j];
+        cr.e_plus[j] = 1e-2 * eb;
         cr.e_minus[j] = 1e-10 * eb;
     }
     let damp = ConstantDamping(gamma_d);
-    run(&mut s, &mut cr, &mut gas, &damp, 30.0, 1.0)?;
+    run(&mut s, &mut cr, &mut gas, &damp, 3.0, 0.5)?;
     let excess = 2.0 * gamma_d * c * c * eb / (p.alpha_nu * omega * va);
     let dx = grid.dx();
     let (mut ef, mut ew) = (0.0f64, 0.0f64);
-    for j in grid.interior().skip(n / 4).take(n / 2) {
+    for j in grid.interior().skip(45).take(35) {
         let h = p.gamma_c * cr.e_c[j];
         ef = ef.max(((cr.f[j] - va * h) / excess - 1.0).abs());
         let gp = (p.gamma_c - 1.0) * (cr.e_c[j + 1] - cr.e_c[j - 1]) / (2.0 * dx);
