@@ -293,6 +293,58 @@ pub fn streaming_run(n: usize, c_r: f64, u: f64, t: f64, smooth: bool) -> Result
     Ok((grid.centers(), cr.e_c.as_slice().unwrap()[r].to_vec(), grid.dx()))
 }
 
+const CRS: f64 = 100.0;
+
+/// Plateau value of a Gaussian ε0(x) = exp(−x²/w) streaming at v_a = 1 (physics-detail §4.4):
+/// with y = x_p − v_a t the wing coordinate at the plateau edge, ε_p = ε0(y) and
+/// ε0'(y) ẏ (y + t) = −(4/3) ε0(y) ⇒ ẏ = (2/3) w/(y (y + t)); start y³ = 2 w t (small t).
+pub fn smooth_plateau(w: f64, t: f64) -> f64 {
+    let t0 = 1e-6 * t;
+    let mut y = (2.0 * w * t0).cbrt();
+    let rhs = |t: f64, y: f64| 2.0 / 3.0 * w / (y * (y + t));
+    let m = 20000;
+    let h = (t - t0) / m as f64;
+    let mut tt = t0;
+    for _ in 0..m {
+        let k1 = rhs(tt, y);
+        let k2 = rhs(tt + 0.5 * h, y + 0.5 * h * k1);
+        let k3 = rhs(tt + 0.5 * h, y + 0.5 * h * k2);
+        let k4 = rhs(tt + h, y + h * k3);
+        y += h / 6.0 * (k1 + 2.0 * k2 + 2.0 * k3 + k4);
+        tt += h;
+    }
+    (-y * y / w).exp()
+}
+
+fn streaming_plateau_smooth() -> CheckResult {
+    let name = "cr.streaming.plateau_smooth_pulse";
+    let t = 1.0;
+    match streaming_run(600, CRS, 0.0, t, true) {
+        Ok((x, e, _)) => {
+            let exact = smooth_plateau(0.5, t);
+            let mid = x.len() / 2;
+            let p = 0.5 * (e[mid - 1] + e[mid]);
+            crate::rel_check(name, SRC_STREAM, p, exact, 0.02)
+        }
+        Err(w) => fail(name, SRC_STREAM, w),
+    }
+}
+
+fn streaming_tophat_energy() -> CheckResult {
+    let name = "cr.streaming.tophat_energy";
+    let t = 2.0;
+    match streaming_run(600, CRS, 0.0, t, false) {
+        Ok((_, e, dx)) => {
+            // Total CR energy 2 x_front ε_plateau = 2 L ε0 (1 + v_a t/L)^(-1/3) (L = 1, ε0 = 1):
+            // what the fronts lose is the streaming heating v_a ΔP_c.
+            let exact = 2.0 * (1.0 + t).powf(-1.0 / 3.0);
+            let total: f64 = e.iter().map(|e| e - 1e-6).sum::<f64>() * dx;
+            crate::rel_check(name, SRC_STREAM, total, exact, 0.02)
+        }
+        Err(w) => fail(name, SRC_STREAM, w),
+    }
+}
+
 /// Position right of the maximum where e_c falls through `level`.
 fn right_level(x: &[f64], e: &[f64], level: f64) -> f64 {
     let n = x.len();
