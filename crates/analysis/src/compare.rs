@@ -260,6 +260,54 @@ pub fn parse_field_tolerances(spec: &str) -> Result<BTreeMap<String, Tolerance>>
     Ok(out)
 }
 
+/// Parses one tolerance option that may mix a global bound and per-field bounds, e.g.
+/// `1e-2`, `density=1e-2,velocity=abs:linf:1e3` or `linf:5e-2,velocity=abs:l1:10`: an entry
+/// without `=` is the global tolerance (at most one), entries `FIELD=TOLERANCE` are per field.
+pub fn parse_tolerances(spec: &str) -> Result<(Option<Tolerance>, BTreeMap<String, Tolerance>)> {
+    let mut global = None;
+    let mut per_field = Vec::new();
+    for entry in spec.split(',').map(str::trim) {
+        if entry.contains('=') {
+            per_field.push(entry);
+        } else if global.is_some() {
+            return Err(AnalysisError::InvalidOption {
+                key: "tolerance".into(),
+                value: spec.into(),
+                allowed: "at most one global tolerance; name the field for the others \
+                          (FIELD=TOLERANCE)"
+                    .into(),
+            });
+        } else {
+            global = Some(entry.parse::<Tolerance>()?);
+        }
+    }
+    let fields = if per_field.is_empty() {
+        BTreeMap::new()
+    } else {
+        parse_field_tolerances(&per_field.join(","))?
+    };
+    Ok((global, fields))
+}
+
+/// Parses a comma-separated field list (`density,cr_energy_density`): non-empty names, each
+/// once.
+pub fn parse_field_list(spec: &str) -> Result<Vec<String>> {
+    let mut out: Vec<String> = Vec::new();
+    for name in spec.split(',').map(str::trim) {
+        if name.is_empty() || out.iter().any(|n| n == name) {
+            return Err(AnalysisError::InvalidOption {
+                key: "fields".into(),
+                value: spec.into(),
+                allowed: "comma-separated field names, each non-empty and given once \
+                          (e.g. density,cr_energy_density)"
+                    .into(),
+            });
+        }
+        out.push(name.to_string());
+    }
+    Ok(out)
+}
+
 /// Options of [`compare`].
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct CompareOptions {
@@ -322,7 +370,7 @@ pub struct CompareReport {
 
 /// Compares `other` with `reference` on the reference grid.
 ///
-/// OTHER is remapped onto the reference (see [`crate::remap`]), the difference
+/// OTHER is remapped onto the reference (see the [`remap` module](mod@crate::remap)), the difference
 /// `OTHER − reference` is measured in all three norms over the compared cells, and each
 /// field passes when the norm selected by its tolerance is `<=` the bound. The verdict passes
 /// when every field passes.

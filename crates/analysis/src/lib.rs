@@ -46,8 +46,8 @@ pub mod remap;
 pub mod report;
 
 pub use compare::{
-    compare, norms, parse_field_tolerances, CompareOptions, CompareReport, FieldComparison, Norm,
-    NormSet, RelativeNormSet, Tolerance, ToleranceKind,
+    compare, norms, parse_field_list, parse_field_tolerances, parse_tolerances, CompareOptions,
+    CompareReport, FieldComparison, Norm, NormSet, RelativeNormSet, Tolerance, ToleranceKind,
 };
 pub use convergence::{
     convergence_series, fitted_order, pairwise_order, self_convergence, ConvergenceKind,

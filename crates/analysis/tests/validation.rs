@@ -585,3 +585,28 @@ fn garbage_input_gives_errors_not_panics() {
     }
     assert!(ok > 0, "no generated input parsed at all");
 }
+
+#[test]
+fn combined_tolerance_option_and_field_list() {
+    let (g, f) = parse_tolerances("linf:5e-2, velocity=abs:l1:10").unwrap();
+    assert_eq!(g, Some("linf:5e-2".parse().unwrap()));
+    assert_eq!(f["velocity"], "abs:l1:10".parse().unwrap());
+    let (g, f) = parse_tolerances("density=1e-3").unwrap();
+    assert_eq!(g, None);
+    assert_eq!(f["density"].value, 1e-3);
+    assert!(parse_tolerances("1e-2,1e-3")
+        .unwrap_err()
+        .to_string()
+        .contains("at most one global tolerance"));
+    assert!(parse_tolerances("x")
+        .unwrap_err()
+        .to_string()
+        .contains("a finite number >= 0"));
+    assert_eq!(
+        parse_field_list("density, cr_energy_density").unwrap(),
+        vec!["density", "cr_energy_density"]
+    );
+    let e = parse_field_list("density,,x").unwrap_err().to_string();
+    assert!(e.starts_with("invalid `fields` = `density,,x`"), "{e}");
+    assert!(parse_field_list("a,a").is_err());
+}
