@@ -59,33 +59,78 @@ pub struct MhdSolver {
 const RK2: [(f64, f64); 2] = [(0.0, 0.5), (0.5, 0.5)];
 const RK3: [(f64, f64); 3] = [(0.0, 1.0 / 6.0), (0.75, 1.0 / 6.0), (1.0 / 3.0, 2.0 / 3.0)];
 
+/// minmod(a, b) = ½[sgn a + sgn b] min(|a|, |b|) (branch-free form).
 #[inline(always)]
-fn limit(lim: Limiter, a: f64, b: f64) -> f64 {
-    match lim {
-        Limiter::Minmod => {
-            if a * b <= 0.0 {
-                0.0
-            } else if a.abs() < b.abs() {
-                a
-            } else {
-                b
-            }
+fn minmod(a: f64, b: f64) -> f64 {
+    let m = a.abs().min(b.abs()).copysign(a);
+    if a * b > 0.0 {
+        m
+    } else {
+        0.0
+    }
+}
+
+/// van Leer harmonic limiter (a b + |a b|)/(a + b).
+#[inline(always)]
+fn van_leer(a: f64, b: f64) -> f64 {
+    let ab = a * b;
+    if ab > 0.0 {
+        2.0 * ab / (a + b)
+    } else {
+        0.0
+    }
+}
+
+/// Monotonized central limiter ½[sgn a + sgn b] min(2|a|, 2|b|, |a + b|/2) (van Leer 1977).
+#[inline(always)]
+fn mc(a: f64, b: f64) -> f64 {
+    let m = (2.0 * a.abs())
+        .min(2.0 * b.abs())
+        .min(0.5 * (a + b).abs())
+        .copysign(a);
+    if a * b > 0.0 {
+        m
+    } else {
+        0.0
+    }
+}
+
+/// PLM face states of cells `lo..=hi` with limiter `lim` (monomorphised per limiter).
+#[allow(clippy::too_many_arguments)]
+#[inline(always)]
+fn plm_faces(
+    prim: &[[f64; 7]],
+    wp: &mut [[f64; 7]],
+    wm: &mut [[f64; 7]],
+    lo: usize,
+    hi: usize,
+    gas: &Gas,
+    rho_min: f64,
+    p_min: f64,
+    lim: impl Fn(f64, f64) -> f64,
+) {
+    for j in lo..=hi {
+        let (a, c, b) = (&prim[j - 1], &prim[j], &prim[j + 1]);
+        let mut dw = [0.0; 7];
+        for k in 0..7 {
+            dw[k] = 0.5 * lim(c[k] - a[k], b[k] - c[k]);
         }
-        Limiter::VanLeer => {
-            let ab = a * b;
-            if ab <= 0.0 {
-                0.0
-            } else {
-                2.0 * ab / (a + b)
-            }
+        if gas.iso {
+            dw[4] = gas.cs2 * dw[0];
         }
-        Limiter::Mc => {
-            if a * b <= 0.0 {
-                0.0
-            } else {
-                let m = (2.0 * a.abs()).min(2.0 * b.abs()).min(0.5 * (a + b).abs());
-                m.copysign(a)
-            }
+        let mut p = [0.0; 7];
+        let mut m = [0.0; 7];
+        for k in 0..7 {
+            p[k] = c[k] + dw[k];
+            m[k] = c[k] - dw[k];
+        }
+        // Positivity: drop to first order if a face ρ or p would be below the floor.
+        if p[0] <= rho_min || m[0] <= rho_min || (!gas.iso && (p[4] <= p_min || m[4] <= p_min)) {
+            wp[j] = *c;
+            wm[j] = *c;
+        } else {
+            wp[j] = p;
+            wm[j] = m;
         }
     }
 }
@@ -317,32 +362,14 @@ impl MhdSolver {
                 let prim = &self.prim[..len];
                 let wp = &mut self.w_plus[..len];
                 let wm = &mut self.w_minus[..len];
-                for j in lo..=hi {
-                    let (a, c, b) = (&prim[j - 1], &prim[j], &prim[j + 1]);
-                    let mut dw = [0.0; 7];
-                    for k in 0..7 {
-                        dw[k] = 0.5 * limit(lim, c[k] - a[k], b[k] - c[k]);
+                match lim {
+                    Limiter::Minmod => {
+                        plm_faces(prim, wp, wm, lo, hi, &gas, rho_min, p_min, minmod)
                     }
-                    if gas.iso {
-                        dw[4] = gas.cs2 * dw[0];
+                    Limiter::VanLeer => {
+                        plm_faces(prim, wp, wm, lo, hi, &gas, rho_min, p_min, van_leer)
                     }
-                    let mut p = [0.0; 7];
-                    let mut m = [0.0; 7];
-                    for k in 0..7 {
-                        p[k] = c[k] + dw[k];
-                        m[k] = c[k] - dw[k];
-                    }
-                    // Positivity: drop to first order if a face ρ or p would be below the floor.
-                    if p[0] <= rho_min
-                        || m[0] <= rho_min
-                        || (!gas.iso && (p[4] <= p_min || m[4] <= p_min))
-                    {
-                        wp[j] = *c;
-                        wm[j] = *c;
-                    } else {
-                        wp[j] = p;
-                        wm[j] = m;
-                    }
+                    Limiter::Mc => plm_faces(prim, wp, wm, lo, hi, &gas, rho_min, p_min, mc),
                 }
             }
         }
@@ -372,30 +399,36 @@ impl MhdSolver {
         Ok(())
     }
 
-    /// U ← a U⁰ + (1 − a)(U − Δt/Δx (F_{j+1/2} − F_{j−1/2})) on the interior.
+    /// U ← a U⁰ + (1 − a)(U − Δt/Δx (F_{j+1/2} − F_{j−1/2})) on the interior (one pass).
     fn update(&mut self, state: &mut State, a: f64, dt: f64) {
         let dtdx = dt / self.grid.dx();
         let r = self.grid.interior();
         let b = 1.0 - a;
         let iso = self.gas.iso;
-        let arrs = state_slices_mut(state);
-        for (k, arr) in arrs.into_iter().enumerate() {
-            if iso && k == 4 {
-                continue;
+        let [rho, mx, my, mz, en, by, bz] = state_slices_mut(state);
+        let (rho, mx, my, mz) = (
+            &mut rho[r.clone()],
+            &mut mx[r.clone()],
+            &mut my[r.clone()],
+            &mut mz[r.clone()],
+        );
+        let (en, by, bz) = (&mut en[r.clone()], &mut by[r.clone()], &mut bz[r.clone()]);
+        let fl = &self.flux[r.start - 1..r.end - 1];
+        let fr = &self.flux[r.clone()];
+        let u0: [&[f64]; 7] = std::array::from_fn(|k| &self.u0[k][r.clone()]);
+        let n = rho.len();
+        for i in 0..n {
+            let (f0, f1) = (&fl[i], &fr[i]);
+            let upd = |u: f64, k: usize| a * u0[k][i] + b * (u - dtdx * (f1[k] - f0[k]));
+            rho[i] = upd(rho[i], 0);
+            mx[i] = upd(mx[i], 1);
+            my[i] = upd(my[i], 2);
+            mz[i] = upd(mz[i], 3);
+            if !iso {
+                en[i] = upd(en[i], 4);
             }
-            let u0 = &self.u0[k][r.clone()];
-            let fl = &self.flux[r.start - 1..r.end - 1];
-            let fr = &self.flux[r.clone()];
-            let u = &mut arr[r.clone()];
-            if a == 0.0 {
-                for ((u, fl), fr) in u.iter_mut().zip(fl).zip(fr) {
-                    *u -= dtdx * (fr[k] - fl[k]);
-                }
-            } else {
-                for (((u, u0), fl), fr) in u.iter_mut().zip(u0).zip(fl).zip(fr) {
-                    *u = a * u0 + b * (*u - dtdx * (fr[k] - fl[k]));
-                }
-            }
+            by[i] = upd(by[i], 5);
+            bz[i] = upd(bz[i], 6);
         }
     }
 
