@@ -227,14 +227,19 @@ pub fn parse_profile(text: &str, file: &str, options: &ReadOptions) -> Result<Pr
         } else {
             // Numeric first line: look for a `#` header just above the data.
             let ncol = first_tokens.len();
+            // The comment header may use either separator (`# x density` above CSV data).
             let candidate = header_comment.and_then(|(no, rest)| {
-                let toks = split(rest.trim(), delimiter);
-                let toks: Vec<String> = toks
-                    .iter()
-                    .map(|t| clean_name(t))
-                    .filter(|t| !t.is_empty())
-                    .collect();
-                (toks.len() == ncol && toks.iter().any(|t| !is_numeric(t))).then_some((no, toks))
+                [delimiter, Delimiter::Whitespace, Delimiter::Comma]
+                    .into_iter()
+                    .map(|d| {
+                        split(rest.trim(), d)
+                            .iter()
+                            .map(|t| clean_name(t))
+                            .filter(|t| !t.is_empty())
+                            .collect::<Vec<String>>()
+                    })
+                    .find(|toks| toks.len() == ncol && toks.iter().any(|t| !is_numeric(t)))
+                    .map(|toks| (no, toks))
             });
             match candidate {
                 Some((no, toks)) => (
@@ -451,6 +456,19 @@ mod tests {
     fn whitespace_columns_with_hash_header_and_fortran_exponent() {
         let p = parse("# run 7\n#  x   density\n0.5\t1.5D-03\n1.5   2.0d+00\n").unwrap();
         assert_eq!(p.field("density").unwrap(), &[1.5e-3, 2.0]);
+    }
+
+    #[test]
+    fn hash_header_with_a_different_separator_than_the_data() {
+        let p = parse("# x density\n0.5,1\n1.5,2\n").unwrap();
+        assert_eq!(p.field("density").unwrap(), &[1.0, 2.0]);
+        let p = parse("#x,density\n0.5 1\n1.5 2\n").unwrap();
+        assert_eq!(p.field("density").unwrap(), &[1.0, 2.0]);
+        // A comment with the wrong number of names is not a header.
+        assert!(parse("# x density pressure\n0.5 1\n")
+            .unwrap_err()
+            .to_string()
+            .contains("no `#` comment line just above it has 2 column names"));
     }
 
     #[test]

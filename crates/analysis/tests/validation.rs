@@ -610,3 +610,26 @@ fn combined_tolerance_option_and_field_list() {
     assert!(e.starts_with("invalid `fields` = `density,,x`"), "{e}");
     assert!(parse_field_list("a,a").is_err());
 }
+
+#[test]
+fn a_shock_displaced_by_one_cell_costs_the_jump_in_linf_and_jump_over_n_in_l1() {
+    // Step from 4 to 1 (a compression ratio of 4) at x = 1/2 in the reference and one cell
+    // later in OTHER: the difference is the jump 3 in exactly one cell of width 1/N.
+    for n in [16usize, 64, 256] {
+        let grid = Profile::uniform("ref", Sampling::CellAverage, 0.0, 1.0, n).unwrap();
+        let step = |shift: usize| -> Vec<f64> {
+            (0..n)
+                .map(|i| if i < n / 2 + shift { 4.0 } else { 1.0 })
+                .collect()
+        };
+        let reference = grid.clone().with_field("density", step(0)).unwrap();
+        let other = grid.with_field("density", step(1)).unwrap();
+        let rep = compare(&reference, &other, &CompareOptions::default()).unwrap();
+        let a = rep.fields[0].absolute;
+        assert!((a.linf - 3.0).abs() < 1e-15);
+        assert!((a.l1 - 3.0 / n as f64).abs() < 1e-14, "{a:?}");
+        assert!((a.l2 - 3.0 / (n as f64).sqrt()).abs() < 1e-13, "{a:?}");
+        // Mean density 2.5: relative L1 = 1.2/N.
+        assert!((rep.fields[0].relative.l1.unwrap() - 1.2 / n as f64).abs() < 1e-14);
+    }
+}
