@@ -231,10 +231,11 @@ fn sod_l1_error(n: usize) -> Result<f64, MhdError> {
     Ok(l1)
 }
 
-/// Bound 3e-3: at N = 400 the contact (Δρ = 0.1484) and the shock (Δρ = 0.1406) are each
-/// smeared over ~3 cells and the rarefaction corners over ~2, giving
-/// L1 ≈ (0.15·3 + 0.14·3 + 0.1·2)·Δx/2 ≈ 1.3e-3; 3e-3 leaves a margin of ≈ 2 while still
-/// failing a first-order scheme (≈ 6e-3 at N = 400, measured with FirstOrder reconstruction).
+/// Bound 3e-3: at N = 400 the contact (Δρ = 0.4263 − 0.2656 = 0.161) and the shock
+/// (Δρ = 0.2656 − 0.125 = 0.141) are each smeared over ~3 cells and the rarefaction corners
+/// over ~2, giving L1 ≈ (0.16·3 + 0.14·3 + 0.1·2)·Δx/2 ≈ 1.4e-3 (measured 1.55e-3 with HLLD,
+/// 1.66e-3 with HLLE); 3e-3 leaves a margin of ≈ 2 while failing a first-order scheme
+/// (measured 8.3e-3 at N = 400 with FirstOrder reconstruction, fitted order 0.66).
 fn sod_l1() -> CheckResult {
     let name = "mhd.sod.l1_density_n400";
     match sod_l1_error(400) {
