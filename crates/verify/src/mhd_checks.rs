@@ -267,11 +267,11 @@ fn sod_order() -> CheckResult {
 // rarefaction, slow compound wave near x ≈ 0.48, contact near x ≈ 0.55, slow shock near
 // x ≈ 0.6, right fast rarefaction reaching x ≈ 0.9.
 
-/// Brio–Wu profiles (ρ, b̃_y) at t = 0.1 on [0, 1] with `n` cells.
-fn brio_wu(
-    n: usize,
-    riemann: RiemannKind,
-) -> Result<(Grid, Vec<f64>, Vec<f64>, Vec<f64>), MhdError> {
+/// Grid and interior profiles (ρ, b̃_y, p) of a Brio–Wu run.
+type BrioWuProfiles = (Grid, Vec<f64>, Vec<f64>, Vec<f64>);
+
+/// Brio–Wu profiles (ρ, b̃_y, p) at t = 0.1 on [0, 1] with `n` cells.
+fn brio_wu(n: usize, riemann: RiemannKind) -> Result<BrioWuProfiles, MhdError> {
     let eos = Eos::Ideal { gamma: 2.0 };
     let grid = Grid::new(n, 0.0, 1.0)?;
     let init = |x: f64| {
