@@ -536,7 +536,7 @@ pub struct InitSection {
 pub fn parse_deck(text: &str, overrides: &[String]) -> Result<Deck, DeckError> {
     let mut table: toml::Table = text
         .parse()
-        .map_err(|e: toml::de::Error| DeckError::Syntax(e.to_string().trim_end().to_string()))?;
+        .map_err(|e: toml::de::Error| DeckError::Syntax(syntax_message(text, &e)))?;
     for arg in overrides {
         apply_override(&mut table, arg)?;
     }
@@ -550,6 +550,16 @@ pub fn parse_deck(text: &str, overrides: &[String]) -> Result<Deck, DeckError> {
             .unwrap_or_default()
             .trim()
             .to_string();
+        // A missing key is reported at its parent; name the key itself.
+        let key = match message
+            .strip_prefix("missing field `")
+            .and_then(|m| m.split('`').next())
+        {
+            Some(field) if key == "." => field.to_string(),
+            Some(field) => format!("{key}.{field}"),
+            None if key == "." => "(top level)".to_string(),
+            None => key,
+        };
         DeckError::Schema { key, message }
     })?;
     deck.validate()?;
@@ -567,6 +577,26 @@ pub fn read_deck(
     })?;
     let deck = parse_deck(&text, overrides)?;
     Ok((deck, text))
+}
+
+/// One-line description of a TOML syntax error with its line and column.
+fn syntax_message(text: &str, e: &toml::de::Error) -> String {
+    let msg = e
+        .message()
+        .lines()
+        .next()
+        .unwrap_or("syntax error")
+        .trim()
+        .to_string();
+    match e.span() {
+        Some(span) => {
+            let upto = &text[..span.start.min(text.len())];
+            let line = upto.matches('\n').count() + 1;
+            let col = upto.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1;
+            format!("line {line}, column {col}: {msg}")
+        }
+        None => msg,
+    }
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -1328,6 +1358,17 @@ pressure = 0.1
         assert_eq!(e.key(), Some("gas.density_floor"), "{e}");
         let e = err_of(SOD, &["gas.pressure_floor=-1"]);
         assert_eq!(e.key(), Some("gas.pressure_floor"), "{e}");
+    }
+
+    #[test]
+    fn missing_keys_and_syntax_errors() {
+        let e = err_of("", &[]);
+        assert_eq!(e.key(), Some("run"), "{e}");
+        let e = err_of(&SOD.replace("t_end = 0.2\n", ""), &[]);
+        assert_eq!(e.key(), Some("run.t_end"), "{e}");
+        let e = err_of("[run\nname = 1", &[]);
+        assert!(e.to_string().contains("line 1, column 5"), "{e}");
+        assert_eq!(e.to_string().lines().count(), 1);
     }
 
     #[test]

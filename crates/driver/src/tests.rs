@@ -51,13 +51,16 @@ density = 1.0
 pressure = 1.0
 "#;
 
+/// (stage, method, dt) of every call, in order.
+type CallLog = Arc<Mutex<Vec<(String, &'static str, f64)>>>;
+
 /// Records every call; `source` heats the gas uniformly at `q` (code energy per volume per
 /// time) and books the energy it adds as `energy_source`.
 struct Recorder {
     name: String,
     q: f64,
     dt_limit: f64,
-    log: Arc<Mutex<Vec<(String, &'static str, f64)>>>,
+    log: CallLog,
     heat: f64,
 }
 
@@ -130,7 +133,7 @@ fn recorder(
     name: &str,
     q: f64,
     dt_limit: f64,
-    log: &Arc<Mutex<Vec<(String, &'static str, f64)>>>,
+    log: &CallLog,
 ) -> Box<Recorder> {
     Box::new(Recorder {
         name: name.into(),
