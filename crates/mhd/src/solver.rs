@@ -28,6 +28,10 @@ pub struct StepReport {
     pub floor_mass: f64,
     /// Faces where HLLD fell back to HLLE (summed over stages).
     pub hlld_fallbacks: u64,
+    /// Cells whose stage update was redone with first-order HLLE fluxes on both faces because
+    /// ρ or p fell below its floor (physics-detail §1.5 safeguard; the neighbours share the
+    /// recomputed face fluxes, so conservation is kept). Floors apply only if still bad.
+    pub first_order_redos: u64,
     /// Time-integrated conserved fluxes into the domain through the left face
     /// (ρ, ρv_x, ρv_y, ρv_z, E, b̃_y, b̃_z).
     pub inflow_left: [f64; 7],
@@ -308,6 +312,7 @@ impl MhdSolver {
             self.apply_boundaries(state);
             self.fluxes(state, &mut rep)?;
             self.update(state, a, dt);
+            rep.first_order_redos += self.redo_bad_cells(state, a, dt);
             // Boundary fluxes, weighted by the stage weight.
             let lf = self.flux[self.grid.ng - 1];
             let rf = self.flux[self.grid.ng + self.grid.n - 1];
@@ -430,6 +435,70 @@ impl MhdSolver {
             by[i] = upd(by[i], 5);
             bz[i] = upd(bz[i], 6);
         }
+    }
+
+    /// Safeguard of physics-detail §1.5: every interior cell whose updated ρ or p is below its
+    /// floor (or not finite) gets both face fluxes recomputed with HLLE from the first-order
+    /// (cell-centred) stage-input states; the flux change is applied to both cells sharing
+    /// each face. Returns the number of cells treated.
+    fn redo_bad_cells(&mut self, state: &mut State, a: f64, dt: f64) -> u64 {
+        let gas = self.gas;
+        let bx = state.bx;
+        let b = 1.0 - a;
+        let dtdx = dt / self.grid.dx();
+        let (rho_min, p_min) = (self.config.floors.rho_min, self.config.floors.p_min);
+        let r = self.grid.interior();
+        let good = |w: &[f64; 7]| {
+            w[0] > rho_min && (gas.iso || w[4] > p_min) && w.iter().all(|x| x.is_finite())
+        };
+        let mut count = 0;
+        let [rho, mx, my, mz, en, by, bz] = state_slices_mut(state);
+        for j in r.clone() {
+            let d = rho[j];
+            let bad = if gas.iso {
+                !(d >= rho_min && d.is_finite())
+            } else {
+                let p = gas.gm1
+                    * (en[j]
+                        - 0.5 * (mx[j] * mx[j] + my[j] * my[j] + mz[j] * mz[j]) / d
+                        - 0.5 * (bx * bx + by[j] * by[j] + bz[j] * bz[j]));
+                !(d >= rho_min && p >= p_min && p.is_finite())
+            };
+            if !bad {
+                continue;
+            }
+            count += 1;
+            for f in [j - 1, j] {
+                let (wl, wr) = (self.prim[f], self.prim[f + 1]);
+                if !(good(&wl) && good(&wr)) {
+                    continue;
+                }
+                let new = hlle(&wl, &wr, bx, &gas);
+                let mut delta = [0.0; 7];
+                for k in 0..7 {
+                    delta[k] = new[k] - self.flux[f][k];
+                }
+                self.flux[f] = new;
+                if gas.iso {
+                    delta[4] = 0.0;
+                }
+                // Cell f (left of the face) loses b Δt/Δx δF, cell f + 1 gains it.
+                for (c, sgn) in [(f, -1.0), (f + 1, 1.0)] {
+                    if c < r.start || c >= r.end {
+                        continue;
+                    }
+                    let s = sgn * b * dtdx;
+                    rho[c] += s * delta[0];
+                    mx[c] += s * delta[1];
+                    my[c] += s * delta[2];
+                    mz[c] += s * delta[3];
+                    en[c] += s * delta[4];
+                    by[c] += s * delta[5];
+                    bz[c] += s * delta[6];
+                }
+            }
+        }
+        count
     }
 
     /// Density and pressure floors on the interior; every hit is counted and its mass/energy
