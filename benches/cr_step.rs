@@ -7,7 +7,10 @@
 
 use criterion::{criterion_group, criterion_main, BatchSize, Criterion, Throughput};
 use sluice_cosmic_rays::{auto_c_r, ConstantDamping, CrParams, CrSolver, CrState};
-use sluice_mhd::{Boundary, BoundaryPair, Eos, Grid, Integrator, Limiter, MhdSolver, Primitive, Reconstruction, RiemannKind, SolverConfig, State};
+use sluice_mhd::{
+    Boundary, BoundaryPair, Eos, Grid, Integrator, Limiter, MhdSolver, Primitive, Reconstruction,
+    RiemannKind, SolverConfig, State,
+};
 use std::hint::black_box;
 
 const N: usize = 4096;
@@ -21,19 +24,30 @@ fn setup() -> (MhdSolver, State, CrSolver, CrState) {
         reconstruction: Reconstruction::Plm(Limiter::Mc),
         integrator: Integrator::SspRk2,
         cfl: 0.8,
-        boundaries: BoundaryPair { left: Boundary::Periodic, right: Boundary::Periodic },
+        boundaries: BoundaryPair {
+            left: Boundary::Periodic,
+            right: Boundary::Periodic,
+        },
         ..SolverConfig::default()
     };
     let mut gas = State::zeros(grid, 0.8);
     let tau = 2.0 * std::f64::consts::PI;
     for j in 0..grid.len() {
         let x = grid.x_center(j) * tau;
-        let w = Primitive { rho: 1.0 + 0.3 * x.sin(), vx: 0.2 * x.cos(), p: 1.0 + 0.2 * (3.0 * x).cos(), ..Primitive::default() };
+        let w = Primitive {
+            rho: 1.0 + 0.3 * x.sin(),
+            vx: 0.2 * x.cos(),
+            p: 1.0 + 0.2 * (3.0 * x).cos(),
+            ..Primitive::default()
+        };
         gas.set_primitive(j, &w, &EOS);
     }
     let mhd = MhdSolver::new(cfg, grid).expect("mhd");
     let c_r = auto_c_r(&gas, &EOS, 10.0).expect("auto c_r").c_r;
-    let p = CrParams { asymptotic_preserving: true, ..CrParams::new(c_r, c_r, 200.0) };
+    let p = CrParams {
+        asymptotic_preserving: true,
+        ..CrParams::new(c_r, c_r, 200.0)
+    };
     let crs = CrSolver::new(p, grid).expect("cr");
     let mut cr = CrState::zeros(&grid);
     let eb = 0.5 * gas.bx * gas.bx;
@@ -64,9 +78,16 @@ fn bench(c: &mut Criterion) {
     let mut g = c.benchmark_group("coupled");
     g.throughput(Throughput::Elements(N as u64));
     let dt = mhd.max_dt(&gas0);
-    eprintln!("MHD dt = {dt:.3e}, CR subcycle dt = {dt_cr:.3e}, subcycles per step = {}", (dt / dt_cr).ceil());
+    eprintln!(
+        "MHD dt = {dt:.3e}, CR subcycle dt = {dt_cr:.3e}, subcycles per step = {}",
+        (dt / dt_cr).ceil()
+    );
     g.bench_function("mhd_only", |b| {
-        b.iter_batched_ref(|| gas0.clone(), |gas| black_box(mhd.step(gas, dt).expect("mhd")), BatchSize::LargeInput)
+        b.iter_batched_ref(
+            || gas0.clone(),
+            |gas| black_box(mhd.step(gas, dt).expect("mhd")),
+            BatchSize::LargeInput,
+        )
     });
     g.bench_function("mhd_plus_cr", |b| {
         b.iter_batched_ref(

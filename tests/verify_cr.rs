@@ -2,8 +2,13 @@
 //! plus the demonstration that the plain HLL flux fails the asymptotic-preserving bound.
 
 fn assert_check(name: &str) {
-    let r = sluice_verify::run_named(name).unwrap_or_else(|| panic!("check {name} is not registered"));
-    assert!(r.pass, "{name}: measured {} expected {} tolerance {} ({})", r.measured, r.expected, r.tolerance, r.source);
+    let r =
+        sluice_verify::run_named(name).unwrap_or_else(|| panic!("check {name} is not registered"));
+    assert!(
+        r.pass,
+        "{name}: measured {} expected {} tolerance {} ({})",
+        r.measured, r.expected, r.tolerance, r.source
+    );
 }
 
 #[test]

@@ -43,7 +43,12 @@ pub struct CrDiagnostics {
 impl CrSolver {
     /// Computes the snapshot diagnostics of the current state. CR ghost cells must be filled
     /// (they are after every `transport` call).
-    pub fn diagnostics(&self, cr: &CrState, gas: &State, damping: &dyn WaveDamping) -> CrDiagnostics {
+    pub fn diagnostics(
+        &self,
+        cr: &CrState,
+        gas: &State,
+        damping: &dyn WaveDamping,
+    ) -> CrDiagnostics {
         let g = gas.grid;
         let p = self.params();
         let pos = gas.bx >= 0.0;
@@ -52,7 +57,11 @@ impl CrSolver {
         let mut d = CrDiagnostics::default();
         let dx = g.dx();
         for j in g.interior() {
-            let (er, el) = if pos { (cr.e_plus[j], cr.e_minus[j]) } else { (cr.e_minus[j], cr.e_plus[j]) };
+            let (er, el) = if pos {
+                (cr.e_plus[j], cr.e_minus[j])
+            } else {
+                (cr.e_minus[j], cr.e_plus[j])
+            };
             let va = match p.model {
                 TransportModel::FixedKappa { .. } => 0.0,
                 _ => self.alfven_pub(gas, j),
@@ -62,10 +71,16 @@ impl CrSolver {
             let (sr, sl) = match p.model {
                 TransportModel::SelfConfined => (sh * er, sh * el),
                 TransportModel::FixedKappa { kappa } => (1.0 / (6.0 * kappa), 1.0 / (6.0 * kappa)),
-                TransportModel::Streaming { kappa, kappa_decoupled } => {
+                TransportModel::Streaming {
+                    kappa,
+                    kappa_decoupled,
+                } => {
                     let s0 = 0.5 / (3.0 * kappa_decoupled);
                     let ss = 1.0 / (3.0 * kappa);
-                    (s0 + if f > va * h { ss } else { 0.0 }, s0 + if f < -va * h { ss } else { 0.0 })
+                    (
+                        s0 + if f > va * h { ss } else { 0.0 },
+                        s0 + if f < -va * h { ss } else { 0.0 },
+                    )
                 }
             };
             let gpc = (p.gamma_c - 1.0) * (cr.e_c[j + 1] - cr.e_c[j - 1]) / (2.0 * dx);
@@ -80,8 +95,10 @@ impl CrSolver {
             let vst = if h > 0.0 { f / h } else { 0.0 };
             d.v_a.push(va);
             d.v_st.push(vst);
-            d.v_st_over_v_a.push(if va > 0.0 { vst / va } else { f64::NAN });
-            d.streaming_excess.push(if h > 0.0 { (f - ua * h) / h } else { 0.0 });
+            d.v_st_over_v_a
+                .push(if va > 0.0 { vst / va } else { f64::NAN });
+            d.streaming_excess
+                .push(if h > 0.0 { (f - ua * h) / h } else { 0.0 });
             let (sp, sm) = if pos { (sr, sl) } else { (sl, sr) };
             d.kappa_plus.push(1.0 / (3.0 * sp));
             d.kappa_minus.push(1.0 / (3.0 * sm));

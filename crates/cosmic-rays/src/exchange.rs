@@ -84,10 +84,18 @@ pub fn logistic(e0: f64, a: f64, b: f64, dt: f64) -> (f64, f64) {
         };
         (e1, int)
     } else {
-        let g = if at.abs() < 1e-8 { dt * (1.0 + 0.5 * at) } else { at.exp_m1() / a };
+        let g = if at.abs() < 1e-8 {
+            dt * (1.0 + 0.5 * at)
+        } else {
+            at.exp_m1() / a
+        };
         let e1 = e0 * (1.0 + a * g) / (1.0 + b * e0 * g);
         let x = b * e0 * g;
-        let int = if x.abs() < 1e-12 { e0 * g * (1.0 - 0.5 * x) } else { x.ln_1p() / b };
+        let int = if x.abs() < 1e-12 {
+            e0 * g * (1.0 - 0.5 * x)
+        } else {
+            x.ln_1p() / b
+        };
         (e1.max(0.0), int)
     }
 }
@@ -107,7 +115,10 @@ pub fn substep(
     let x = dt * ctx.cr2;
     let va = ctx.va;
     let mut out = c;
-    let mut tr = Transfer { substeps: 1, ..Transfer::default() };
+    let mut tr = Transfer {
+        substeps: 1,
+        ..Transfer::default()
+    };
     let mut ok = true;
     let mut heat = 0.0;
     let mut w = 0.0; // CR → waves (or → heat directly in the streaming model)
@@ -142,7 +153,10 @@ pub fn substep(
             let s = 1.0 / (3.0 * kappa);
             f1 = c.f / (1.0 + x * s);
         }
-        TransportModel::Streaming { kappa, kappa_decoupled } => {
+        TransportModel::Streaming {
+            kappa,
+            kappa_decoupled,
+        } => {
             let ss = 1.0 / (3.0 * kappa);
             let s0 = 1.0 / (3.0 * kappa_decoupled);
             let vh = va * h0;
@@ -221,11 +235,11 @@ pub fn exchange_cell(
     // Entry floor (transport may have left a wave energy below it).
     if matches!(ctx.model, TransportModel::SelfConfined) {
         let mut fl = 0.0;
-        if !(c.er >= ctx.floor) {
+        if c.er.is_nan() || c.er < ctx.floor {
             fl += ctx.floor - c.er;
             c.er = ctx.floor;
         }
-        if !(c.el >= ctx.floor) {
+        if c.el.is_nan() || c.el < ctx.floor {
             fl += ctx.floor - c.el;
             c.el = ctx.floor;
         }

@@ -45,7 +45,8 @@ pub mod state;
 pub use damping::{ConstantDamping, NoDamping, QuadraticDamping, WaveDamping, WaveDirection};
 pub use diagnostics::CrDiagnostics;
 pub use params::{
-    AlfvenDensity, Coupling, CrBoundary, CrBoundaryPair, CrParams, ExchangeTolerances, Limiter, TransportModel, WorkForm,
+    AlfvenDensity, Coupling, CrBoundary, CrBoundaryPair, CrParams, ExchangeTolerances, Limiter,
+    TransportModel, WorkForm,
 };
 pub use solver::{auto_c_r, AutoCr, CrReport, CrSolver};
 pub use state::CrState;

@@ -100,7 +100,11 @@ pub struct ExchangeTolerances {
 
 impl Default for ExchangeTolerances {
     fn default() -> Self {
-        Self { tol_c: 0.05, tol_a: 0.5, max_halvings: 30 }
+        Self {
+            tol_c: 0.05,
+            tol_a: 0.5,
+            max_halvings: 30,
+        }
     }
 }
 
@@ -156,7 +160,10 @@ impl CrParams {
             asymptotic_preserving: false,
             work_form: WorkForm::Scattering,
             model: TransportModel::SelfConfined,
-            boundaries: CrBoundaryPair { left: CrBoundary::Periodic, right: CrBoundary::Periodic },
+            boundaries: CrBoundaryPair {
+                left: CrBoundary::Periodic,
+                right: CrBoundary::Periodic,
+            },
             tolerances: ExchangeTolerances::default(),
             cfl: 0.5,
             max_subcycles: 100_000,
@@ -166,8 +173,16 @@ impl CrParams {
 
     /// Checks every value; the error names the parameter, its value and the allowed range.
     pub fn validate(&self) -> Result<(), CrError> {
-        fn bad(key: &'static str, value: impl std::fmt::Display, allowed: &'static str) -> Result<(), CrError> {
-            Err(CrError::InvalidParameter { key, value: value.to_string(), allowed })
+        fn bad(
+            key: &'static str,
+            value: impl std::fmt::Display,
+            allowed: &'static str,
+        ) -> Result<(), CrError> {
+            Err(CrError::InvalidParameter {
+                key,
+                value: value.to_string(),
+                allowed,
+            })
         }
         let pos = |x: f64| x.is_finite() && x > 0.0;
         if !pos(self.c_r) {
@@ -183,10 +198,18 @@ impl CrParams {
             return bad("alpha_nu", self.alpha_nu, "a finite number > 0");
         }
         if !pos(self.omega) {
-            return bad("omega", self.omega, "a finite number > 0 (gyro-frequency, code units)");
+            return bad(
+                "omega",
+                self.omega,
+                "a finite number > 0 (gyro-frequency, code units)",
+            );
         }
         if !(pos(self.wave_floor) && self.wave_floor < 1.0) {
-            return bad("wave_floor", self.wave_floor, "0 < wave_floor < 1 (fraction of e_B)");
+            return bad(
+                "wave_floor",
+                self.wave_floor,
+                "0 < wave_floor < 1 (fraction of e_B)",
+            );
         }
         if !(self.cfl > 0.0 && self.cfl <= 1.0) {
             return bad("cfl", self.cfl, "0 < cfl <= 1");
@@ -211,18 +234,30 @@ impl CrParams {
                     return bad("kappa", kappa, "a finite number > 0");
                 }
             }
-            TransportModel::Streaming { kappa, kappa_decoupled } => {
+            TransportModel::Streaming {
+                kappa,
+                kappa_decoupled,
+            } => {
                 if !pos(kappa) {
                     return bad("kappa", kappa, "a finite number > 0");
                 }
-                if !(kappa_decoupled > 0.0) || kappa_decoupled.is_nan() {
-                    return bad("kappa_decoupled", kappa_decoupled, "a number > 0 (infinity = no scattering)");
+                if kappa_decoupled.is_nan() || kappa_decoupled <= 0.0 {
+                    return bad(
+                        "kappa_decoupled",
+                        kappa_decoupled,
+                        "a number > 0 (infinity = no scattering)",
+                    );
                 }
             }
         }
-        for (key, b) in [("boundary_left", self.boundaries.left), ("boundary_right", self.boundaries.right)] {
+        for (key, b) in [
+            ("boundary_left", self.boundaries.left),
+            ("boundary_right", self.boundaries.right),
+        ] {
             match b {
-                CrBoundary::FixedFlux(x) if !x.is_finite() => return bad(key, x, "a finite CR energy flux"),
+                CrBoundary::FixedFlux(x) if !x.is_finite() => {
+                    return bad(key, x, "a finite CR energy flux")
+                }
                 CrBoundary::FixedEnergyDensity(x) if !(x.is_finite() && x >= 0.0) => {
                     return bad(key, x, "a finite CR energy density >= 0")
                 }

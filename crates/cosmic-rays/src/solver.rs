@@ -79,7 +79,11 @@ fn fast_speed(gas: &State, j: usize, eos: &Eos) -> f64 {
 /// `factor` must be ≥ 10.
 pub fn auto_c_r(gas: &State, eos: &Eos, factor: f64) -> Result<AutoCr, CrError> {
     if !(factor.is_finite() && factor >= 10.0) {
-        return Err(CrError::InvalidParameter { key: "c_r_factor", value: factor.to_string(), allowed: "a finite number >= 10" });
+        return Err(CrError::InvalidParameter {
+            key: "c_r_factor",
+            value: factor.to_string(),
+            allowed: "a finite number >= 10",
+        });
     }
     let mut vmax: f64 = 0.0;
     for j in gas.grid.interior() {
@@ -93,7 +97,11 @@ pub fn auto_c_r(gas: &State, eos: &Eos, factor: f64) -> Result<AutoCr, CrError> 
             allowed: "auto needs a finite positive MHD signal speed; give c_r as a number",
         });
     }
-    Ok(AutoCr { c_r: factor * vmax, v_max: vmax, ratio: factor })
+    Ok(AutoCr {
+        c_r: factor * vmax,
+        v_max: vmax,
+        ratio: factor,
+    })
 }
 
 /// Face fluxes and scratch of one flux evaluation (no allocation per step).
@@ -141,7 +149,13 @@ impl CrSolver {
             u0: [z(n), z(n), z(n), z(n), z(n), z(n)],
             grad_pc: z(n),
         };
-        Ok(Self { params, grid, ion_fraction: Array1::ones(n), heating: Array1::zeros(n), scratch })
+        Ok(Self {
+            params,
+            grid,
+            ion_fraction: Array1::ones(n),
+            heating: Array1::zeros(n),
+            scratch,
+        })
     }
 
     /// The parameters.
@@ -162,7 +176,11 @@ impl CrSolver {
     /// [`AlfvenDensity::Ion`].
     pub fn set_ion_fraction(&mut self, xi: &[f64]) -> Result<(), CrError> {
         if xi.len() != self.grid.len() {
-            return Err(CrError::GridMismatch { what: "ion_fraction", expected: self.grid.len(), found: xi.len() });
+            return Err(CrError::GridMismatch {
+                what: "ion_fraction",
+                expected: self.grid.len(),
+                found: xi.len(),
+            });
         }
         if let Some((j, &x)) = xi.iter().enumerate().find(|(_, &x)| !(x > 0.0 && x <= 1.0)) {
             return Err(CrError::InvalidParameter {
@@ -171,7 +189,10 @@ impl CrSolver {
                 allowed: "0 < x_i <= 1",
             });
         }
-        self.ion_fraction.as_slice_mut().expect("contiguous").copy_from_slice(xi);
+        self.ion_fraction
+            .as_slice_mut()
+            .expect("contiguous")
+            .copy_from_slice(xi);
         Ok(())
     }
 
@@ -192,17 +213,29 @@ impl CrSolver {
             ("e_minus", cr.e_minus.len()),
         ] {
             if len != n {
-                return Err(CrError::GridMismatch { what, expected: n, found: len });
+                return Err(CrError::GridMismatch {
+                    what,
+                    expected: n,
+                    found: len,
+                });
             }
         }
         if !(gas.bx != 0.0 && gas.bx.is_finite()) {
-            return Err(CrError::FieldNotAlongX { cell: None, bx: gas.bx, b_perp: 0.0 });
+            return Err(CrError::FieldNotAlongX {
+                cell: None,
+                bx: gas.bx,
+                b_perp: 0.0,
+            });
         }
         let tol = 1e-10 * gas.bx.abs();
         for j in self.grid.interior() {
             let bp = (gas.by[j] * gas.by[j] + gas.bz[j] * gas.bz[j]).sqrt();
-            if !(bp <= tol) {
-                return Err(CrError::FieldNotAlongX { cell: Some(j - self.grid.ng), bx: gas.bx, b_perp: bp });
+            if bp.is_nan() || bp > tol {
+                return Err(CrError::FieldNotAlongX {
+                    cell: Some(j - self.grid.ng),
+                    bx: gas.bx,
+                    b_perp: bp,
+                });
             }
         }
         Ok(())
@@ -243,14 +276,27 @@ impl CrSolver {
         let g = &self.grid;
         let (ng, n) = (g.ng, g.n);
         let pos = gas.bx >= 0.0;
-        let CrState { e_c, f, e_plus, e_minus } = cr;
-        let (er, el) = if pos { (e_plus, e_minus) } else { (e_minus, e_plus) };
+        let CrState {
+            e_c,
+            f,
+            e_plus,
+            e_minus,
+        } = cr;
+        let (er, el) = if pos {
+            (e_plus, e_minus)
+        } else {
+            (e_minus, e_plus)
+        };
         let ec = e_c.as_slice_mut().expect("contiguous");
         let ff = f.as_slice_mut().expect("contiguous");
         let er = er.as_slice_mut().expect("contiguous");
         let el = el.as_slice_mut().expect("contiguous");
         for side in 0..2 {
-            let b = if side == 0 { self.params.boundaries.left } else { self.params.boundaries.right };
+            let b = if side == 0 {
+                self.params.boundaries.left
+            } else {
+                self.params.boundaries.right
+            };
             for k in 0..ng {
                 // ghost index, mirror index, nearest interior, periodic image
                 let (gi, mi, ni, pi) = if side == 0 {
@@ -294,7 +340,11 @@ impl CrSolver {
         let g = self.grid;
         let (ng, n) = (g.ng, g.n);
         let pos = gas.bx >= 0.0;
-        let (er, el) = if pos { (&cr.e_plus, &cr.e_minus) } else { (&cr.e_minus, &cr.e_plus) };
+        let (er, el) = if pos {
+            (&cr.e_plus, &cr.e_minus)
+        } else {
+            (&cr.e_minus, &cr.e_plus)
+        };
         let eb = 0.5 * gas.bx * gas.bx;
         let sh = self.params.alpha_nu * self.params.omega / (self.params.c * self.params.c * eb);
         for j in 0..g.len() {
@@ -340,7 +390,10 @@ impl CrSolver {
             self.scratch.sig[j] = match self.params.model {
                 TransportModel::SelfConfined => sh * (er[j] + el[j]),
                 TransportModel::FixedKappa { kappa } => 1.0 / (3.0 * kappa),
-                TransportModel::Streaming { kappa, kappa_decoupled } => {
+                TransportModel::Streaming {
+                    kappa,
+                    kappa_decoupled,
+                } => {
                     let h = self.params.gamma_c * cr.e_c[j];
                     if cr.f[j].abs() >= va * h {
                         1.0 / (3.0 * kappa) + 1.0 / (3.0 * kappa_decoupled)
@@ -360,7 +413,11 @@ impl CrSolver {
         let nt = g.len();
         let p = &self.params;
         let pos = gas.bx >= 0.0;
-        let (er, el) = if pos { (&cr.e_plus, &cr.e_minus) } else { (&cr.e_minus, &cr.e_plus) };
+        let (er, el) = if pos {
+            (&cr.e_plus, &cr.e_minus)
+        } else {
+            (&cr.e_minus, &cr.e_plus)
+        };
         let vars: [&[f64]; 4] = [
             cr.e_c.as_slice().expect("contiguous"),
             cr.f.as_slice().expect("contiguous"),
@@ -405,8 +462,10 @@ impl CrSolver {
             } else {
                 cw
             };
-            f_ec[k] = vf * gc * if up { ecm } else { ecp } + 0.5 * (fm + fp) - 0.5 * ae * (ecp - ecm);
-            f_f[k] = vf * if up { fm } else { fp } + 0.5 * cr2 * (gc - 1.0) * (ecm + ecp) - 0.5 * cw * (fp - fm);
+            f_ec[k] =
+                vf * gc * if up { ecm } else { ecp } + 0.5 * (fm + fp) - 0.5 * ae * (ecp - ecm);
+            f_f[k] = vf * if up { fm } else { fp } + 0.5 * cr2 * (gc - 1.0) * (ecm + ecp)
+                - 0.5 * cw * (fp - fm);
             if wave {
                 let erm = vars[2][jl] + 0.5 * s_er[jl];
                 let erp = vars[2][jr] - 0.5 * s_er[jr];
@@ -445,8 +504,17 @@ impl CrSolver {
         let lam = dt / g.dx();
         let cr2 = self.params.c_r * self.params.c_r;
         let pos = gas.bx >= 0.0;
-        let CrState { e_c, f, e_plus, e_minus } = cr;
-        let (er, el) = if pos { (e_plus, e_minus) } else { (e_minus, e_plus) };
+        let CrState {
+            e_c,
+            f,
+            e_plus,
+            e_minus,
+        } = cr;
+        let (er, el) = if pos {
+            (e_plus, e_minus)
+        } else {
+            (e_minus, e_plus)
+        };
         let ec = &mut e_c.as_slice_mut().expect("contiguous")[ng..ng + n];
         let ff = &mut f.as_slice_mut().expect("contiguous")[ng..ng + n];
         let er = &mut er.as_slice_mut().expect("contiguous")[ng..ng + n];
@@ -508,8 +576,19 @@ impl CrSolver {
         let dx = g.dx();
         let mut sum = Transfer::default();
         for j in g.interior() {
-            let (er, el) = if pos { (cr.e_plus[j], cr.e_minus[j]) } else { (cr.e_minus[j], cr.e_plus[j]) };
-            let c0 = Cell { ec: cr.e_c[j], f: cr.f[j], er, el, m: gas.mx[j], en: gas.en[j] };
+            let (er, el) = if pos {
+                (cr.e_plus[j], cr.e_minus[j])
+            } else {
+                (cr.e_minus[j], cr.e_plus[j])
+            };
+            let c0 = Cell {
+                ec: cr.e_c[j],
+                f: cr.f[j],
+                er,
+                el,
+                m: gas.mx[j],
+                en: gas.en[j],
+            };
             let ctx = CellCtx {
                 rho: gas.rho[j],
                 va: match p.model {
@@ -562,7 +641,13 @@ impl CrSolver {
     /// Applies the CR–wave–gas exchange over `dt` (physics-detail §2.6) when
     /// [`Coupling::Split`] is selected; with [`Coupling::InTransport`] (default) the exchange
     /// happens inside [`Self::transport`] and this is a no-op returning an empty report.
-    pub fn exchange(&mut self, cr: &mut CrState, gas: &mut State, damping: &dyn WaveDamping, dt: f64) -> Result<CrReport, CrError> {
+    pub fn exchange(
+        &mut self,
+        cr: &mut CrState,
+        gas: &mut State,
+        damping: &dyn WaveDamping,
+        dt: f64,
+    ) -> Result<CrReport, CrError> {
         let mut rep = CrReport::default();
         if self.params.coupling == Coupling::InTransport {
             return Ok(rep);
@@ -580,7 +665,13 @@ impl CrSolver {
 
     /// Applies the exchange over `dt` regardless of [`Coupling`] (the local operator itself;
     /// for tests and special drivers).
-    pub fn exchange_local(&mut self, cr: &mut CrState, gas: &mut State, damping: &dyn WaveDamping, dt: f64) -> Result<CrReport, CrError> {
+    pub fn exchange_local(
+        &mut self,
+        cr: &mut CrState,
+        gas: &mut State,
+        damping: &dyn WaveDamping,
+        dt: f64,
+    ) -> Result<CrReport, CrError> {
         check_dt(dt)?;
         self.check(cr, gas)?;
         let mut rep = CrReport::default();
@@ -597,7 +688,13 @@ impl CrSolver {
     /// with [`Coupling::InTransport`] every stage is followed by the implicit local exchange.
     /// Gas density is frozen; gas momentum and energy receive the wave-pressure force/work and
     /// (in-transport coupling) the exchange terms. Gas ghost cells are read, never written.
-    pub fn transport(&mut self, cr: &mut CrState, gas: &mut State, damping: &dyn WaveDamping, dt: f64) -> Result<CrReport, CrError> {
+    pub fn transport(
+        &mut self,
+        cr: &mut CrState,
+        gas: &mut State,
+        damping: &dyn WaveDamping,
+        dt: f64,
+    ) -> Result<CrReport, CrError> {
         check_dt(dt)?;
         self.check(cr, gas)?;
         let mut rep = CrReport::default();
@@ -607,8 +704,11 @@ impl CrSolver {
         }
         let dtc = self.max_dt_cr(gas);
         let nsub = (dt / dtc).ceil().max(1.0);
-        if !(nsub <= self.params.max_subcycles as f64) {
-            return Err(CrError::StepTooLarge { dt, max_dt: self.max_dt(gas) });
+        if nsub.is_nan() || nsub > self.params.max_subcycles as f64 {
+            return Err(CrError::StepTooLarge {
+                dt,
+                max_dt: self.max_dt(gas),
+            });
         }
         let nsub = nsub as usize;
         let h = dt / nsub as f64;
@@ -665,7 +765,11 @@ impl CrSolver {
 
 fn check_dt(dt: f64) -> Result<(), CrError> {
     if !(dt.is_finite() && dt >= 0.0) {
-        return Err(CrError::InvalidParameter { key: "dt", value: dt.to_string(), allowed: "a finite number >= 0" });
+        return Err(CrError::InvalidParameter {
+            key: "dt",
+            value: dt.to_string(),
+            allowed: "a finite number >= 0",
+        });
     }
     Ok(())
 }

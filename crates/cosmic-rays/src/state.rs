@@ -23,7 +23,12 @@ impl CrState {
     /// All zero on `grid`.
     pub fn zeros(grid: &Grid) -> Self {
         let n = grid.len();
-        Self { e_c: Array1::zeros(n), f: Array1::zeros(n), e_plus: Array1::zeros(n), e_minus: Array1::zeros(n) }
+        Self {
+            e_c: Array1::zeros(n),
+            f: Array1::zeros(n),
+            e_plus: Array1::zeros(n),
+            e_minus: Array1::zeros(n),
+        }
     }
 
     /// Number of storage cells.
@@ -40,7 +45,12 @@ impl CrState {
     pub fn totals(&self, grid: &Grid) -> [f64; 4] {
         let r = grid.interior();
         let dx = grid.dx();
-        let s = |a: &Array1<f64>| a.as_slice().map(|x| x[r.clone()].iter().sum::<f64>()).unwrap_or(0.0) * dx;
+        let s = |a: &Array1<f64>| {
+            a.as_slice()
+                .map(|x| x[r.clone()].iter().sum::<f64>())
+                .unwrap_or(0.0)
+                * dx
+        };
         [s(&self.e_c), s(&self.f), s(&self.e_plus), s(&self.e_minus)]
     }
 }

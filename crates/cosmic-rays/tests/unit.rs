@@ -11,7 +11,12 @@ fn gas(grid: Grid, bx: f64) -> State {
     let tau = 2.0 * std::f64::consts::PI;
     for j in 0..grid.len() {
         let x = grid.x_center(j);
-        let w = Primitive { rho: 1.0 + 0.3 * (tau * x).sin(), vx: 0.1 * (tau * x).cos(), p: 1.0, ..Primitive::default() };
+        let w = Primitive {
+            rho: 1.0 + 0.3 * (tau * x).sin(),
+            vx: 0.1 * (tau * x).cos(),
+            p: 1.0,
+            ..Primitive::default()
+        };
         g.set_primitive(j, &w, &EOS);
     }
     g
@@ -48,7 +53,10 @@ fn label_symmetry_is_bit_identical() {
         let mut g = gas(grid, bx);
         let eb = 0.5 * bx * bx;
         let mut cr = cr_state(&grid, eb, swap);
-        let p = CrParams { asymptotic_preserving: true, ..CrParams::new(5.0, 5.0, 40.0) };
+        let p = CrParams {
+            asymptotic_preserving: true,
+            ..CrParams::new(5.0, 5.0, 40.0)
+        };
         let mut s = CrSolver::new(p, grid).unwrap();
         for _ in 0..20 {
             let dt = 3.0 * s.max_dt_cr(&g);
@@ -65,7 +73,11 @@ fn label_symmetry_is_bit_identical() {
     assert_eq!(ga.mx, gb.mx);
     assert_eq!(ga.en, gb.en);
     // and something happened
-    assert!(a.e_plus.iter().zip(cr_state(&grid, 0.045, false).e_plus.iter()).any(|(x, y)| x != y));
+    assert!(a
+        .e_plus
+        .iter()
+        .zip(cr_state(&grid, 0.045, false).e_plus.iter())
+        .any(|(x, y)| x != y));
 }
 
 #[test]
@@ -78,20 +90,57 @@ fn validation_names_key_value_and_range() {
         }
         other => panic!("expected an error, got {other:?}"),
     }
-    let bad = CrParams { model: TransportModel::FixedKappa { kappa: 0.0 }, ..CrParams::new(1.0, 10.0, 1.0) };
-    assert!(matches!(bad.validate(), Err(CrError::InvalidParameter { key: "kappa", .. })));
     let bad = CrParams {
-        boundaries: CrBoundaryPair { left: CrBoundary::Periodic, right: CrBoundary::Outflow },
+        model: TransportModel::FixedKappa { kappa: 0.0 },
         ..CrParams::new(1.0, 10.0, 1.0)
     };
-    assert!(matches!(bad.validate(), Err(CrError::InvalidParameter { key: "boundaries", .. })));
+    assert!(matches!(
+        bad.validate(),
+        Err(CrError::InvalidParameter { key: "kappa", .. })
+    ));
+    let bad = CrParams {
+        boundaries: CrBoundaryPair {
+            left: CrBoundary::Periodic,
+            right: CrBoundary::Outflow,
+        },
+        ..CrParams::new(1.0, 10.0, 1.0)
+    };
+    assert!(matches!(
+        bad.validate(),
+        Err(CrError::InvalidParameter {
+            key: "boundaries",
+            ..
+        })
+    ));
     let bad = CrParams::new(10.0, 1.0, 1.0);
-    assert!(matches!(bad.validate(), Err(CrError::InvalidParameter { key: "c", .. })));
-    let bad = CrParams { wave_floor: 0.0, ..CrParams::new(1.0, 10.0, 1.0) };
-    assert!(matches!(bad.validate(), Err(CrError::InvalidParameter { key: "wave_floor", .. })));
-    assert!(CrSolver::new(CrParams::new(f64::NAN, 1.0, 1.0), Grid::new(4, 0.0, 1.0).unwrap()).is_err());
-    let msg = CrParams::new(-1.0, 10.0, 1.0).validate().unwrap_err().to_string();
-    assert!(msg.contains("c_r") && msg.contains("-1") && msg.contains("> 0"), "{msg}");
+    assert!(matches!(
+        bad.validate(),
+        Err(CrError::InvalidParameter { key: "c", .. })
+    ));
+    let bad = CrParams {
+        wave_floor: 0.0,
+        ..CrParams::new(1.0, 10.0, 1.0)
+    };
+    assert!(matches!(
+        bad.validate(),
+        Err(CrError::InvalidParameter {
+            key: "wave_floor",
+            ..
+        })
+    ));
+    assert!(CrSolver::new(
+        CrParams::new(f64::NAN, 1.0, 1.0),
+        Grid::new(4, 0.0, 1.0).unwrap()
+    )
+    .is_err());
+    let msg = CrParams::new(-1.0, 10.0, 1.0)
+        .validate()
+        .unwrap_err()
+        .to_string();
+    assert!(
+        msg.contains("c_r") && msg.contains("-1") && msg.contains("> 0"),
+        "{msg}"
+    );
 }
 
 #[test]
@@ -102,11 +151,20 @@ fn oblique_field_and_zero_bx_are_rejected() {
     let mut cr = cr_state(&grid, 0.045, false);
     let mut s = CrSolver::new(CrParams::new(5.0, 5.0, 1.0), grid).unwrap();
     let e = s.transport(&mut cr, &mut g, &NoDamping, 1e-3).unwrap_err();
-    assert!(matches!(e, CrError::FieldNotAlongX { cell: Some(3), .. }), "{e:?}");
+    assert!(
+        matches!(e, CrError::FieldNotAlongX { cell: Some(3), .. }),
+        "{e:?}"
+    );
     let mut g0 = gas(grid, 0.0);
-    assert!(matches!(s.transport(&mut cr, &mut g0, &NoDamping, 1e-3), Err(CrError::FieldNotAlongX { cell: None, .. })));
+    assert!(matches!(
+        s.transport(&mut cr, &mut g0, &NoDamping, 1e-3),
+        Err(CrError::FieldNotAlongX { cell: None, .. })
+    ));
     let mut g1 = gas(grid, 0.3);
-    assert!(matches!(s.transport(&mut cr, &mut g1, &NoDamping, -1.0), Err(CrError::InvalidParameter { key: "dt", .. })));
+    assert!(matches!(
+        s.transport(&mut cr, &mut g1, &NoDamping, -1.0),
+        Err(CrError::InvalidParameter { key: "dt", .. })
+    ));
 }
 
 #[test]
@@ -114,10 +172,16 @@ fn step_limit_is_enforced() {
     let grid = Grid::new(16, 0.0, 1.0).unwrap();
     let mut g = gas(grid, 0.3);
     let mut cr = cr_state(&grid, 0.045, false);
-    let p = CrParams { max_subcycles: 3, ..CrParams::new(5.0, 5.0, 1.0) };
+    let p = CrParams {
+        max_subcycles: 3,
+        ..CrParams::new(5.0, 5.0, 1.0)
+    };
     let mut s = CrSolver::new(p, grid).unwrap();
     let too_big = 1.5 * s.max_dt(&g);
-    assert!(matches!(s.transport(&mut cr, &mut g, &NoDamping, too_big), Err(CrError::StepTooLarge { .. })));
+    assert!(matches!(
+        s.transport(&mut cr, &mut g, &NoDamping, too_big),
+        Err(CrError::StepTooLarge { .. })
+    ));
     let dtm = s.max_dt(&g);
     let r = s.transport(&mut cr, &mut g, &NoDamping, dtm).unwrap();
     assert_eq!(r.subcycles, 3);
@@ -131,7 +195,10 @@ fn local_exchange_conserves_and_stays_positive() {
     let models = [
         TransportModel::SelfConfined,
         TransportModel::FixedKappa { kappa: 1e-3 },
-        TransportModel::Streaming { kappa: 1e-4, kappa_decoupled: 10.0 },
+        TransportModel::Streaming {
+            kappa: 1e-4,
+            kappa_decoupled: 10.0,
+        },
     ];
     for model in models {
         for dt in [1e-4, 1e-2, 1.0] {
@@ -140,7 +207,11 @@ fn local_exchange_conserves_and_stays_positive() {
             for j in 0..grid.len() {
                 cr.f[j] *= 20.0; // far from equilibrium
             }
-            let p = CrParams { model, coupling: Coupling::Split, ..CrParams::new(5.0, 5.0, 1e3) };
+            let p = CrParams {
+                model,
+                coupling: Coupling::Split,
+                ..CrParams::new(5.0, 5.0, 1e3)
+            };
             let mut s = CrSolver::new(p, grid).unwrap();
             let tot = |cr: &CrState, g: &State| {
                 let c = cr.totals(&grid);
@@ -148,15 +219,26 @@ fn local_exchange_conserves_and_stays_positive() {
                 (t[4] + c[0] + c[2] + c[3], t[1] + c[1] / 25.0)
             };
             let (e0, m0) = tot(&cr, &g);
-            let rep = s.exchange(&mut cr, &mut g, &ConstantDamping(3.0), dt).unwrap();
+            let rep = s
+                .exchange(&mut cr, &mut g, &ConstantDamping(3.0), dt)
+                .unwrap();
             let (e1, m1) = tot(&cr, &g);
-            assert!((e1 - e0).abs() <= 1e-13 * e0.abs(), "{model:?} dt={dt}: energy {e0} -> {e1}");
-            assert!((m1 - m0).abs() <= 1e-13, "{model:?} dt={dt}: momentum {m0} -> {m1}");
+            assert!(
+                (e1 - e0).abs() <= 1e-13 * e0.abs(),
+                "{model:?} dt={dt}: energy {e0} -> {e1}"
+            );
+            assert!(
+                (m1 - m0).abs() <= 1e-13,
+                "{model:?} dt={dt}: momentum {m0} -> {m1}"
+            );
             let floor = 1e-10 * 0.045;
             for j in grid.interior() {
                 assert!(cr.e_c[j] >= 0.0);
                 if model == TransportModel::SelfConfined {
-                    assert!(cr.e_plus[j] >= floor * (1.0 - 1e-12) && cr.e_minus[j] >= floor * (1.0 - 1e-12));
+                    assert!(
+                        cr.e_plus[j] >= floor * (1.0 - 1e-12)
+                            && cr.e_minus[j] >= floor * (1.0 - 1e-12)
+                    );
                 }
             }
             assert!(rep.exchange_substeps >= grid.n as u64);
@@ -186,13 +268,28 @@ fn auto_c_r_uses_fast_speed() {
     let grid = Grid::new(8, 0.0, 1.0).unwrap();
     let mut g = State::zeros(grid, 2.0);
     for j in 0..grid.len() {
-        g.set_primitive(j, &Primitive { rho: 1.0, vx: -0.5, p: 0.6, ..Primitive::default() }, &EOS);
+        g.set_primitive(
+            j,
+            &Primitive {
+                rho: 1.0,
+                vx: -0.5,
+                p: 0.6,
+                ..Primitive::default()
+            },
+            &EOS,
+        );
     }
     let a = auto_c_r(&g, &EOS, 10.0).unwrap();
     // c_s = 1, v_a = 2 → v_max = 2.5
     assert!((a.v_max - 2.5).abs() < 1e-12, "{a:?}");
     assert!((a.c_r - 25.0).abs() < 1e-11 && a.ratio == 10.0);
-    assert!(matches!(auto_c_r(&g, &EOS, 5.0), Err(CrError::InvalidParameter { key: "c_r_factor", .. })));
+    assert!(matches!(
+        auto_c_r(&g, &EOS, 5.0),
+        Err(CrError::InvalidParameter {
+            key: "c_r_factor",
+            ..
+        })
+    ));
 }
 
 /// Fixed-flux boundary: the energy entering is exactly F_in Δt, and the report's ledger closes:
@@ -203,7 +300,10 @@ fn boundary_ledger_closes() {
     let mut g = gas(grid, 0.3);
     let mut cr = cr_state(&grid, 0.045, false);
     let p = CrParams {
-        boundaries: CrBoundaryPair { left: CrBoundary::FixedFlux(0.7), right: CrBoundary::Outflow },
+        boundaries: CrBoundaryPair {
+            left: CrBoundary::FixedFlux(0.7),
+            right: CrBoundary::Outflow,
+        },
         ..CrParams::new(5.0, 5.0, 30.0)
     };
     let mut s = CrSolver::new(p, grid).unwrap();
@@ -213,12 +313,20 @@ fn boundary_ledger_closes() {
     };
     let e0 = tot(&cr, &g);
     let dt = 5.0 * s.max_dt_cr(&g);
-    let r = s.transport(&mut cr, &mut g, &ConstantDamping(1.0), dt).unwrap();
+    let r = s
+        .transport(&mut cr, &mut g, &ConstantDamping(1.0), dt)
+        .unwrap();
     let e1 = tot(&cr, &g);
     assert_eq!(r.subcycles, 5);
     let waves_left = r.energy_in_left - 0.7 * dt;
-    assert!(waves_left.abs() < 0.1 * 0.7 * dt, "CR part of the left inflow is 0.7 dt: {r:?}");
-    assert!((e1 - e0 - r.energy_in_left - r.energy_in_right).abs() < 1e-13 * e0, "{e0} {e1} {r:?}");
+    assert!(
+        waves_left.abs() < 0.1 * 0.7 * dt,
+        "CR part of the left inflow is 0.7 dt: {r:?}"
+    );
+    assert!(
+        (e1 - e0 - r.energy_in_left - r.energy_in_right).abs() < 1e-13 * e0,
+        "{e0} {e1} {r:?}"
+    );
 }
 
 #[test]
@@ -228,7 +336,8 @@ fn diagnostics_are_consistent() {
     let mut cr = cr_state(&grid, 0.045, false);
     let mut s = CrSolver::new(CrParams::new(5.0, 5.0, 30.0), grid).unwrap();
     let dtc = s.max_dt_cr(&g);
-    s.transport(&mut cr, &mut g, &ConstantDamping(1.0), dtc).unwrap();
+    s.transport(&mut cr, &mut g, &ConstantDamping(1.0), dtc)
+        .unwrap();
     let d = s.diagnostics(&cr, &g, &ConstantDamping(1.0));
     assert_eq!(d.v_st.len(), grid.n);
     for i in 0..grid.n {
@@ -237,6 +346,9 @@ fn diagnostics_are_consistent() {
         assert!((d.v_st[i] - cr.f[j] / h).abs() < 1e-14);
         let ke = d.kappa_plus[i] * d.kappa_minus[i] / (d.kappa_plus[i] + d.kappa_minus[i]);
         assert!((d.kappa_eff[i] / ke - 1.0).abs() < 1e-12);
-        assert!((d.damping_heating[i] - 2.0 * (cr.e_plus[j] + cr.e_minus[j])).abs() < 1e-12 * d.damping_heating[i]);
+        assert!(
+            (d.damping_heating[i] - 2.0 * (cr.e_plus[j] + cr.e_minus[j])).abs()
+                < 1e-12 * d.damping_heating[i]
+        );
     }
 }

@@ -5,7 +5,8 @@
 
 use crate::{max_check, Check, CheckResult};
 use sluice_cosmic_rays::{
-    ConstantDamping, CrBoundary, CrBoundaryPair, CrParams, CrSolver, CrState, NoDamping, TransportModel, WaveDamping,
+    ConstantDamping, CrBoundary, CrBoundaryPair, CrParams, CrSolver, CrState, NoDamping,
+    TransportModel, WaveDamping,
 };
 use sluice_mhd::{Eos, Grid, Primitive, State};
 
@@ -22,22 +23,86 @@ const SRC_DRIFT: &str = "Steady streaming with linear damping Γ (Wiener, Zweibe
 /// The checks of this module.
 pub fn checks() -> Vec<Check> {
     vec![
-        Check { name: "cr.diffusion.heat_kernel_width", source: SRC_HEAT, run: heat_kernel_width },
-        Check { name: "cr.diffusion.heat_kernel_profile_l1", source: SRC_HEAT, run: heat_kernel_profile },
-        Check { name: "cr.telegraph.green_function_values", source: SRC_TELEGRAPH, run: telegraph_table },
-        Check { name: "cr.telegraph.profile_l1_cr10", source: SRC_TELEGRAPH, run: telegraph_profile },
-        Check { name: "cr.telegraph.no_signal_beyond_front", source: SRC_FRONT, run: telegraph_front },
-        Check { name: "cr.diffusion.asymptotic_preserving", source: SRC_AP, run: ap_diffusion },
-        Check { name: "cr.streaming.tophat_energy", source: SRC_STREAM, run: streaming_tophat_energy },
-        Check { name: "cr.streaming.front_speed", source: SRC_STREAM, run: streaming_front },
-        Check { name: "cr.streaming.plateau_smooth_pulse", source: SRC_STREAM, run: streaming_plateau_smooth },
-        Check { name: "cr.conservation.energy_1000_steps", source: SRC_CONS, run: conservation_energy },
-        Check { name: "cr.conservation.momentum_1000_steps", source: SRC_CONS, run: conservation_momentum },
-        Check { name: "cr.galilean.streaming_pulse", source: SRC_GAL, run: galilean },
-        Check { name: "cr.c_r_convergence.diffusion", source: SRC_CRCONV, run: crconv_diffusion },
-        Check { name: "cr.c_r_convergence.streaming", source: SRC_CRCONV, run: crconv_streaming },
-        Check { name: "cr.self_confined.drift_excess_linear_damping", source: SRC_DRIFT, run: drift_excess },
-        Check { name: "cr.self_confined.wave_energy_linear_damping", source: SRC_DRIFT, run: drift_wave_energy },
+        Check {
+            name: "cr.diffusion.heat_kernel_width",
+            source: SRC_HEAT,
+            run: heat_kernel_width,
+        },
+        Check {
+            name: "cr.diffusion.heat_kernel_profile_l1",
+            source: SRC_HEAT,
+            run: heat_kernel_profile,
+        },
+        Check {
+            name: "cr.telegraph.green_function_values",
+            source: SRC_TELEGRAPH,
+            run: telegraph_table,
+        },
+        Check {
+            name: "cr.telegraph.profile_l1_cr10",
+            source: SRC_TELEGRAPH,
+            run: telegraph_profile,
+        },
+        Check {
+            name: "cr.telegraph.no_signal_beyond_front",
+            source: SRC_FRONT,
+            run: telegraph_front,
+        },
+        Check {
+            name: "cr.diffusion.asymptotic_preserving",
+            source: SRC_AP,
+            run: ap_diffusion,
+        },
+        Check {
+            name: "cr.streaming.tophat_energy",
+            source: SRC_STREAM,
+            run: streaming_tophat_energy,
+        },
+        Check {
+            name: "cr.streaming.front_speed",
+            source: SRC_STREAM,
+            run: streaming_front,
+        },
+        Check {
+            name: "cr.streaming.plateau_smooth_pulse",
+            source: SRC_STREAM,
+            run: streaming_plateau_smooth,
+        },
+        Check {
+            name: "cr.conservation.energy_1000_steps",
+            source: SRC_CONS,
+            run: conservation_energy,
+        },
+        Check {
+            name: "cr.conservation.momentum_1000_steps",
+            source: SRC_CONS,
+            run: conservation_momentum,
+        },
+        Check {
+            name: "cr.galilean.streaming_pulse",
+            source: SRC_GAL,
+            run: galilean,
+        },
+        Check {
+            name: "cr.c_r_convergence.diffusion",
+            source: SRC_CRCONV,
+            run: crconv_diffusion,
+        },
+        Check {
+            name: "cr.c_r_convergence.streaming",
+            source: SRC_CRCONV,
+            run: crconv_streaming,
+        },
+        Check {
+            name: "cr.self_confined.drift_excess_linear_damping",
+            source: SRC_DRIFT,
+            run: drift_excess,
+        },
+        Check {
+            name: "cr.self_confined.wave_energy_linear_damping",
+            source: SRC_DRIFT,
+            run: drift_wave_energy,
+        },
     ]
 }
 
@@ -52,30 +117,54 @@ fn uniform_gas(grid: Grid, rho: f64, v: f64, p: f64, va: f64) -> State {
     let bx = va * rho.sqrt();
     let mut g = State::zeros(grid, bx);
     for j in 0..grid.len() {
-        g.set_primitive(j, &Primitive { rho, vx: v, p, ..Primitive::default() }, &EOS);
+        g.set_primitive(
+            j,
+            &Primitive {
+                rho,
+                vx: v,
+                p,
+                ..Primitive::default()
+            },
+            &EOS,
+        );
     }
     g
 }
 
 fn periodic() -> CrBoundaryPair {
-    CrBoundaryPair { left: CrBoundary::Periodic, right: CrBoundary::Periodic }
+    CrBoundaryPair {
+        left: CrBoundary::Periodic,
+        right: CrBoundary::Periodic,
+    }
 }
 
 fn fixed_kappa_params(c_r: f64, kappa: f64, ap: bool) -> CrParams {
     CrParams {
         model: TransportModel::FixedKappa { kappa },
         asymptotic_preserving: ap,
-        boundaries: CrBoundaryPair { left: CrBoundary::Outflow, right: CrBoundary::Outflow },
+        boundaries: CrBoundaryPair {
+            left: CrBoundary::Outflow,
+            right: CrBoundary::Outflow,
+        },
         ..CrParams::new(c_r, 1e3 * c_r, 1.0)
     }
 }
 
 /// Runs the CR solver alone for time `t` in steps of `dt_outer` (≤ t); returns the final state.
-fn run(solver: &mut CrSolver, cr: &mut CrState, gas: &mut State, damping: &dyn WaveDamping, t: f64, dt_outer: f64) -> Result<(), String> {
+fn run(
+    solver: &mut CrSolver,
+    cr: &mut CrState,
+    gas: &mut State,
+    damping: &dyn WaveDamping,
+    t: f64,
+    dt_outer: f64,
+) -> Result<(), String> {
     let mut time = 0.0;
     while time < t * (1.0 - 1e-14) {
         let dt = dt_outer.min(t - time);
-        solver.transport(cr, gas, damping, dt).map_err(|e| e.to_string())?;
+        solver
+            .transport(cr, gas, damping, dt)
+            .map_err(|e| e.to_string())?;
         time += dt;
     }
     Ok(())
@@ -86,27 +175,51 @@ fn gaussian(x: f64, e0: f64, s2: f64) -> f64 {
 }
 
 /// Fixed-κ Gaussian run: returns (x, e_c) of the interior and Δx.
-fn diffusion_run(n: usize, half: f64, c_r: f64, kappa: f64, s0: f64, t: f64, ap: bool) -> Result<(Vec<f64>, Vec<f64>, f64), String> {
+fn diffusion_run(
+    n: usize,
+    half: f64,
+    c_r: f64,
+    kappa: f64,
+    s0: f64,
+    t: f64,
+    ap: bool,
+) -> Result<(Vec<f64>, Vec<f64>, f64), String> {
     let grid = Grid::new(n, -half, half).map_err(|e| e.to_string())?;
     let mut gas = uniform_gas(grid, 1e20, 0.0, 1.0, 1.0);
-    let mut s = CrSolver::new(fixed_kappa_params(c_r, kappa, ap), grid).map_err(|e| e.to_string())?;
+    let mut s =
+        CrSolver::new(fixed_kappa_params(c_r, kappa, ap), grid).map_err(|e| e.to_string())?;
     let mut cr = CrState::zeros(&grid);
     for j in 0..grid.len() {
         cr.e_c[j] = gaussian(grid.x_center(j), 1.0, s0 * s0);
     }
     run(&mut s, &mut cr, &mut gas, &NoDamping, t, t / 4.0)?;
     let r = grid.interior();
-    Ok((grid.centers(), cr.e_c.as_slice().unwrap()[r].to_vec(), grid.dx()))
+    Ok((
+        grid.centers(),
+        cr.e_c.as_slice().unwrap()[r].to_vec(),
+        grid.dx(),
+    ))
 }
 
 fn second_moment(x: &[f64], e: &[f64]) -> f64 {
     let m0: f64 = e.iter().sum();
     let m1: f64 = x.iter().zip(e).map(|(x, e)| x * e).sum::<f64>() / m0;
-    x.iter().zip(e).map(|(x, e)| (x - m1) * (x - m1) * e).sum::<f64>() / m0
+    x.iter()
+        .zip(e)
+        .map(|(x, e)| (x - m1) * (x - m1) * e)
+        .sum::<f64>()
+        / m0
 }
 
 fn fail(name: &str, source: &str, why: String) -> CheckResult {
-    CheckResult { name: name.into(), source: format!("{source} [run failed: {why}]"), measured: f64::NAN, expected: 0.0, tolerance: 0.0, pass: false }
+    CheckResult {
+        name: name.into(),
+        source: format!("{source} [run failed: {why}]"),
+        measured: f64::NAN,
+        expected: 0.0,
+        tolerance: 0.0,
+        pass: false,
+    }
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -133,7 +246,12 @@ fn heat_kernel_profile() -> CheckResult {
     match diffusion_run(n, half, c_r, kappa, s0, t, false) {
         Ok((x, e, dx)) => {
             let s2 = s0 * s0 + 2.0 * kappa * t;
-            let l1: f64 = x.iter().zip(&e).map(|(x, e)| (e - gaussian(*x, 1.0, s2)).abs()).sum::<f64>() * dx;
+            let l1: f64 = x
+                .iter()
+                .zip(&e)
+                .map(|(x, e)| (e - gaussian(*x, 1.0, s2)).abs())
+                .sum::<f64>()
+                * dx;
             max_check(name, SRC_HEAT, l1, 0.0, 0.01)
         }
         Err(w) => fail(name, SRC_HEAT, w),
@@ -146,14 +264,20 @@ fn bessel_i0e(x: f64) -> f64 {
     let ax = x.abs();
     if ax < 3.75 {
         let y = (x / 3.75).powi(2);
-        (1.0 + y * (3.5156229 + y * (3.0899424 + y * (1.2067492 + y * (0.2659732 + y * (0.0360768 + y * 0.0045813))))))
+        (1.0 + y
+            * (3.5156229
+                + y * (3.0899424
+                    + y * (1.2067492 + y * (0.2659732 + y * (0.0360768 + y * 0.0045813))))))
             * (-ax).exp()
     } else {
         let y = 3.75 / ax;
         (0.39894228
             + y * (0.01328592
                 + y * (0.00225319
-                    + y * (-0.00157565 + y * (0.00916281 + y * (-0.02057706 + y * (0.02635537 + y * (-0.01647633 + y * 0.00392377))))))))
+                    + y * (-0.00157565
+                        + y * (0.00916281
+                            + y * (-0.02057706
+                                + y * (0.02635537 + y * (-0.01647633 + y * 0.00392377))))))))
             / ax.sqrt()
     }
 }
@@ -162,14 +286,20 @@ fn bessel_i1e(x: f64) -> f64 {
     let ax = x.abs();
     let r = if ax < 3.75 {
         let y = (x / 3.75).powi(2);
-        ax * (0.5 + y * (0.87890594 + y * (0.51498869 + y * (0.15084934 + y * (0.02658733 + y * (0.00301532 + y * 0.00032411))))))
+        ax * (0.5
+            + y * (0.87890594
+                + y * (0.51498869
+                    + y * (0.15084934 + y * (0.02658733 + y * (0.00301532 + y * 0.00032411))))))
             * (-ax).exp()
     } else {
         let y = 3.75 / ax;
         (0.39894228
             + y * (-0.03988024
                 + y * (-0.00362018
-                    + y * (0.00163801 + y * (-0.01031555 + y * (0.02282967 + y * (-0.02895312 + y * (0.01787654 - y * 0.00420059))))))))
+                    + y * (0.00163801
+                        + y * (-0.01031555
+                            + y * (0.02282967
+                                + y * (-0.02895312 + y * (0.01787654 - y * 0.00420059))))))))
             / ax.sqrt()
     };
     if x < 0.0 {
@@ -190,7 +320,11 @@ fn telegraph_smooth(x: f64, t: f64, c_r: f64, kappa: f64) -> f64 {
     let z = a * xi;
     // e^{−at} I_n(aξ) = e^{−a(t−ξ)} I_n e(aξ)
     let ex = (-a * (t - xi)).exp();
-    let i1_over = if xi > 1e-12 * t { t / xi * bessel_i1e(z) } else { 0.5 * a * t * (-z).exp() };
+    let i1_over = if xi > 1e-12 * t {
+        t / xi * bessel_i1e(z)
+    } else {
+        0.5 * a * t * (-z).exp()
+    };
     a / (2.0 * cw) * ex * (bessel_i0e(z) + i1_over)
 }
 
@@ -198,14 +332,21 @@ fn telegraph_smooth(x: f64, t: f64, c_r: f64, kappa: f64) -> f64 {
 fn telegraph_gauss(x: f64, t: f64, c_r: f64, kappa: f64, s2: f64) -> f64 {
     let cw = c_r / 3f64.sqrt();
     let a = c_r * c_r / (6.0 * kappa);
-    let fronts = 0.5 * (-a * t).exp() * (gaussian(x - cw * t, 1.0, s2) + gaussian(x + cw * t, 1.0, s2));
+    let fronts =
+        0.5 * (-a * t).exp() * (gaussian(x - cw * t, 1.0, s2) + gaussian(x + cw * t, 1.0, s2));
     // Quadrature over the source point y (Simpson on [−c_w t, c_w t]).
     let m = 2000;
     let h = 2.0 * cw * t / m as f64;
     let mut sum = 0.0;
     for k in 0..=m {
         let y = -cw * t + k as f64 * h;
-        let w = if k == 0 || k == m { 1.0 } else if k % 2 == 1 { 4.0 } else { 2.0 };
+        let w = if k == 0 || k == m {
+            1.0
+        } else if k % 2 == 1 {
+            4.0
+        } else {
+            2.0
+        };
         sum += w * telegraph_smooth(y, t, c_r, kappa) * gaussian(x - y, 1.0, s2);
     }
     fronts + sum * h / 3.0
@@ -213,10 +354,25 @@ fn telegraph_gauss(x: f64, t: f64, c_r: f64, kappa: f64, s2: f64) -> f64 {
 
 fn telegraph_table() -> CheckResult {
     // Reproduce the [computed] table of physics-detail §4.3 (κ = 1, t = 0.5): worst relative error.
-    let cases = [(10.0, 0.0, 0.39281), (10.0, 1.0, 0.24954), (30.0, 0.0, 0.39828), (30.0, 1.0, 0.24278), (3.0, 0.0, 0.31656)];
-    let worst = cases.iter().map(|&(c, x, g)| (telegraph_smooth(x, 0.5, c, 1.0) / g - 1.0).abs()).fold(0.0, f64::max);
+    let cases = [
+        (10.0, 0.0, 0.39281),
+        (10.0, 1.0, 0.24954),
+        (30.0, 0.0, 0.39828),
+        (30.0, 1.0, 0.24278),
+        (3.0, 0.0, 0.31656),
+    ];
+    let worst = cases
+        .iter()
+        .map(|&(c, x, g)| (telegraph_smooth(x, 0.5, c, 1.0) / g - 1.0).abs())
+        .fold(0.0, f64::max);
     let outside = telegraph_smooth(1.0, 0.5, 3.0, 1.0);
-    max_check("cr.telegraph.green_function_values", SRC_TELEGRAPH, worst + outside.abs(), 0.0, 1e-4)
+    max_check(
+        "cr.telegraph.green_function_values",
+        SRC_TELEGRAPH,
+        worst + outside.abs(),
+        0.0,
+        1e-4,
+    )
 }
 
 fn telegraph_profile() -> CheckResult {
@@ -224,7 +380,12 @@ fn telegraph_profile() -> CheckResult {
     let (c_r, kappa, s0, t) = (10.0, 1.0, 0.3, 0.5);
     match diffusion_run(800, 8.0, c_r, kappa, s0, t, false) {
         Ok((x, e, dx)) => {
-            let l1: f64 = x.iter().zip(&e).map(|(x, e)| (e - telegraph_gauss(*x, t, c_r, kappa, s0 * s0)).abs()).sum::<f64>() * dx;
+            let l1: f64 = x
+                .iter()
+                .zip(&e)
+                .map(|(x, e)| (e - telegraph_gauss(*x, t, c_r, kappa, s0 * s0)).abs())
+                .sum::<f64>()
+                * dx;
             // The telegraph solution differs from the heat kernel by l1_heat; the scheme must be
             // much closer to the telegraph solution than that (and within 1% absolute L1 of the
             // unit-mass profile).
@@ -241,7 +402,13 @@ fn telegraph_front() -> CheckResult {
         Ok((x, e, dx)) => {
             let cw = c_r / 3f64.sqrt();
             let edge = cw * t + 4.0 * s0 + 10.0 * dx;
-            let beyond: f64 = x.iter().zip(&e).filter(|(x, _)| x.abs() > edge).map(|(_, e)| e.abs()).sum::<f64>() * dx;
+            let beyond: f64 = x
+                .iter()
+                .zip(&e)
+                .filter(|(x, _)| x.abs() > edge)
+                .map(|(_, e)| e.abs())
+                .sum::<f64>()
+                * dx;
             max_check(name, SRC_FRONT, beyond, 0.0, 1e-3)
         }
         Err(w) => fail(name, SRC_FRONT, w),
@@ -269,7 +436,10 @@ fn ap_diffusion() -> CheckResult {
 
 fn streaming_params(c_r: f64) -> CrParams {
     CrParams {
-        model: TransportModel::Streaming { kappa: 1e-3, kappa_decoupled: f64::INFINITY },
+        model: TransportModel::Streaming {
+            kappa: 1e-3,
+            kappa_decoupled: f64::INFINITY,
+        },
         asymptotic_preserving: true,
         boundaries: periodic(),
         ..CrParams::new(c_r, 1e3 * c_r, 1.0)
@@ -278,7 +448,13 @@ fn streaming_params(c_r: f64) -> CrParams {
 
 /// Top hat ε0 = 1 on |x| < L = 1, background 1e-6, v_a = 1, static heavy gas moving at `u`.
 /// Returns (x, e_c) at time t.
-pub fn streaming_run(n: usize, c_r: f64, u: f64, t: f64, smooth: bool) -> Result<(Vec<f64>, Vec<f64>, f64), String> {
+pub fn streaming_run(
+    n: usize,
+    c_r: f64,
+    u: f64,
+    t: f64,
+    smooth: bool,
+) -> Result<(Vec<f64>, Vec<f64>, f64), String> {
     let half = 6.0;
     let grid = Grid::new(n, -half, half).map_err(|e| e.to_string())?;
     let mut gas = uniform_gas(grid, 1e6, u, 1.0, 1.0);
@@ -286,11 +462,22 @@ pub fn streaming_run(n: usize, c_r: f64, u: f64, t: f64, smooth: bool) -> Result
     let mut cr = CrState::zeros(&grid);
     for j in 0..grid.len() {
         let x = grid.x_center(j);
-        cr.e_c[j] = 1e-6 + if smooth { (-x * x / 0.5).exp() } else if x.abs() < 1.0 { 1.0 } else { 0.0 };
+        cr.e_c[j] = 1e-6
+            + if smooth {
+                (-x * x / 0.5).exp()
+            } else if x.abs() < 1.0 {
+                1.0
+            } else {
+                0.0
+            };
     }
     run(&mut s, &mut cr, &mut gas, &NoDamping, t, t / 8.0)?;
     let r = grid.interior();
-    Ok((grid.centers(), cr.e_c.as_slice().unwrap()[r].to_vec(), grid.dx()))
+    Ok((
+        grid.centers(),
+        cr.e_c.as_slice().unwrap()[r].to_vec(),
+        grid.dx(),
+    ))
 }
 
 const CRS: f64 = 100.0;
@@ -405,7 +592,9 @@ fn crconv_diffusion() -> CheckResult {
     let b = diffusion_run(200, 10.0, 40.0, 1.0, 0.5, 1.0, false);
     match (a, b) {
         // Bound: the telegraph correction at c_r = 20 is 2κ·3κ/c_r² / (σ0² + 2κt) ≈ 0.7% of σ².
-        (Ok((_, e1, _)), Ok((_, e2, _))) => max_check(name, SRC_CRCONV, rel_l1(&e1, &e2), 0.0, 0.01),
+        (Ok((_, e1, _)), Ok((_, e2, _))) => {
+            max_check(name, SRC_CRCONV, rel_l1(&e1, &e2), 0.0, 0.01)
+        }
         (Err(w), _) | (_, Err(w)) => fail(name, SRC_CRCONV, w),
     }
 }
@@ -415,7 +604,9 @@ fn crconv_streaming() -> CheckResult {
     let a = streaming_run(300, 20.0, 0.0, 1.0, true);
     let b = streaming_run(300, 40.0, 0.0, 1.0, true);
     match (a, b) {
-        (Ok((_, e1, _)), Ok((_, e2, _))) => max_check(name, SRC_CRCONV, rel_l1(&e1, &e2), 0.0, 0.02),
+        (Ok((_, e1, _)), Ok((_, e2, _))) => {
+            max_check(name, SRC_CRCONV, rel_l1(&e1, &e2), 0.0, 0.02)
+        }
         (Err(w), _) | (_, Err(w)) => fail(name, SRC_CRCONV, w),
     }
 }
@@ -432,12 +623,21 @@ pub fn conservation_drifts() -> Result<(f64, f64), String> {
     let tau = 2.0 * std::f64::consts::PI;
     for j in 0..grid.len() {
         let x = grid.x_center(j);
-        let w = Primitive { rho: 1.0 + 0.3 * (tau * x).sin(), vx: 0.2 * (tau * x).cos(), p: 1.0, ..Primitive::default() };
+        let w = Primitive {
+            rho: 1.0 + 0.3 * (tau * x).sin(),
+            vx: 0.2 * (tau * x).cos(),
+            p: 1.0,
+            ..Primitive::default()
+        };
         gas.set_primitive(j, &w, &EOS);
     }
     // Ω chosen so that σ̂ e_B c²/Ω = α_ν: moderate scattering, c = c_r.
     let c_r = 10.0;
-    let p = CrParams { boundaries: periodic(), asymptotic_preserving: true, ..CrParams::new(c_r, c_r, 50.0) };
+    let p = CrParams {
+        boundaries: periodic(),
+        asymptotic_preserving: true,
+        ..CrParams::new(c_r, c_r, 50.0)
+    };
     let mut s = CrSolver::new(p, grid).map_err(|e| e.to_string())?;
     let mut cr = CrState::zeros(&grid);
     let eb = 0.5 * gas.bx * gas.bx;
@@ -456,13 +656,16 @@ pub fn conservation_drifts() -> Result<(f64, f64), String> {
     };
     let scale_m = |cr: &CrState, gas: &State| {
         let r = grid.interior();
-        r.map(|j| gas.mx[j].abs() + cr.f[j].abs() / (c_r * c_r)).sum::<f64>() * grid.dx()
+        r.map(|j| gas.mx[j].abs() + cr.f[j].abs() / (c_r * c_r))
+            .sum::<f64>()
+            * grid.dx()
     };
     let (e0, m0) = total(&cr, &gas);
     let ms = scale_m(&cr, &gas);
     let dt = 2.0 * s.max_dt_cr(&gas);
     for _ in 0..1000 {
-        s.transport(&mut cr, &mut gas, &damp, dt).map_err(|e| e.to_string())?;
+        s.transport(&mut cr, &mut gas, &damp, dt)
+            .map_err(|e| e.to_string())?;
     }
     let (e1, m1) = total(&cr, &gas);
     Ok(((e1 - e0).abs() / e0.abs(), (m1 - m0).abs() / ms))
@@ -504,7 +707,10 @@ pub fn drift_errors() -> Result<(f64, f64), String> {
     let target_excess = 0.05;
     let omega = 2.0 * gamma_d * c * c * eb / (alpha * va * target_excess);
     let p = CrParams {
-        boundaries: CrBoundaryPair { left: CrBoundary::FixedEnergyDensity(2.0), right: CrBoundary::FixedEnergyDensity(1.0) },
+        boundaries: CrBoundaryPair {
+            left: CrBoundary::FixedEnergyDensity(2.0),
+            right: CrBoundary::FixedEnergyDensity(1.0),
+        },
         asymptotic_preserving: true,
         ..CrParams::new(c_r, c, omega)
     };
