@@ -87,6 +87,7 @@ fn cmd_run(
     let (deck, text) = read_deck(deck_path, set)?;
     let dir = out.unwrap_or_else(|| default_out(deck_path, deck.run.output_dir.as_deref()));
     let mut sim = Simulation::from_deck(deck, text)?;
+    sim.set_overrides(set.to_vec());
     let progress = !quiet && std::io::stderr().is_terminal();
     let mut writer = OutputWriter::new(&dir, &sim, progress)?;
     let result = sim.run(&mut writer);

@@ -68,6 +68,10 @@ pub fn build_snapshot(sim: &Simulation, index: usize) -> Snapshot {
         ("magnetic_field_x".into(), AttrValue::F64(bx_g)),
         ("cells".into(), AttrValue::I64(n as i64)),
         ("deck".into(), AttrValue::Str(sim.deck_text().to_string())),
+        (
+            "deck_overrides".into(),
+            AttrValue::Str(sim.overrides().join("\n")),
+        ),
     ];
     match eos {
         Eos::Ideal { gamma } => {

@@ -136,6 +136,7 @@ impl Ledger {
 pub struct Simulation {
     deck: Deck,
     deck_text: String,
+    overrides: Vec<String>,
     units: Units,
     solver: MhdSolver,
     state: State,
@@ -209,6 +210,7 @@ impl Simulation {
         let mut sim = Self {
             deck,
             deck_text,
+            overrides: Vec::new(),
             units,
             solver,
             state,
@@ -226,7 +228,19 @@ impl Simulation {
     /// Parses deck text (with `--set` style overrides) and builds the simulation.
     pub fn from_toml_str(text: &str, overrides: &[String]) -> Result<Self, DriverError> {
         let deck = parse_deck(text, overrides)?;
-        Self::from_deck(deck, text.to_string())
+        let mut sim = Self::from_deck(deck, text.to_string())?;
+        sim.set_overrides(overrides.to_vec());
+        Ok(sim)
+    }
+
+    /// Records the `--set` overrides the deck was parsed with (written to snapshots).
+    pub fn set_overrides(&mut self, overrides: Vec<String>) {
+        self.overrides = overrides;
+    }
+
+    /// The `--set` overrides recorded with [`Simulation::set_overrides`].
+    pub fn overrides(&self) -> &[String] {
+        &self.overrides
     }
 
     fn reset_ledger_origin(&mut self) {
