@@ -62,6 +62,10 @@ pub struct CellCtx {
     pub work_form: WorkForm,
     /// Model.
     pub model: TransportModel,
+    /// e^{−tol_a} (wave-energy ratio bound of a substep).
+    pub ratio_lo: f64,
+    /// e^{tol_a}.
+    pub ratio_hi: f64,
 }
 
 /// Exact solution of dε/dt = A ε − b ε² over `dt` (b ≥ 0, ε0 > 0) and ∫₀^dt ε dt.
@@ -139,9 +143,11 @@ pub fn substep(
             let hl = wl - (el1 - c.el);
             w = wr + wl;
             heat = hr + hl;
-            let lr = (er1.max(ctx.floor) / c.er).ln().abs();
-            let ll = (el1.max(ctx.floor) / c.el).ln().abs();
-            if !(lr <= tol.tol_a && ll <= tol.tol_a) {
+            // |Δ ln ε| ≤ tol_a, tested as a ratio bound (no logarithm in the hot loop).
+            let (lo, hi) = (ctx.ratio_lo, ctx.ratio_hi);
+            let rr = er1.max(ctx.floor);
+            let rl = el1.max(ctx.floor);
+            if !(rr >= lo * c.er && rr <= hi * c.er && rl >= lo * c.el && rl <= hi * c.el) {
                 ok = false;
             }
             out.er = er1;

@@ -335,7 +335,46 @@ impl CrSolver {
         }
     }
 
-    /// Gas velocity, Alfvén speed and total scattering per storage cell into scratch.
+    /// Storage cell whose gas values stand in for cell `j` (itself for interior cells and
+    /// filled gas ghosts; the periodic image or the nearest interior cell otherwise), and
+    /// whether the velocity must be mirrored (reflecting side, ghost not filled).
+    fn gas_source(&self, gas: &State, j: usize) -> (usize, bool) {
+        let (ng, n) = (self.grid.ng, self.grid.n);
+        if j >= ng && j < ng + n {
+            return (j, false);
+        }
+        let side = if j < ng {
+            self.params.boundaries.left
+        } else {
+            self.params.boundaries.right
+        };
+        match side {
+            CrBoundary::Periodic => (if j < ng { j + n } else { j - n }, false),
+            _ if gas.rho[j] > 0.0 && gas.rho[j].is_finite() => (j, false),
+            CrBoundary::Reflecting => (
+                if j < ng {
+                    2 * ng - 1 - j
+                } else {
+                    2 * (ng + n) - 1 - j
+                },
+                true,
+            ),
+            _ => (if j < ng { ng } else { ng + n - 1 }, false),
+        }
+    }
+
+    /// Alfvén speeds per storage cell (density is frozen during a call).
+    fn fill_alfven(&mut self, gas: &State) {
+        for j in 0..self.grid.len() {
+            let (src, _) = self.gas_source(gas, j);
+            self.scratch.va[j] = match self.params.model {
+                TransportModel::FixedKappa { .. } => 0.0,
+                _ => self.alfven(gas, src),
+            };
+        }
+    }
+
+    /// Gas velocity and total scattering per storage cell into scratch (after `fill_alfven`).
     fn fill_cell_speeds(&mut self, cr: &CrState, gas: &State) {
         let g = self.grid;
         let (ng, n) = (g.ng, g.n);
@@ -347,61 +386,41 @@ impl CrSolver {
         };
         let eb = 0.5 * gas.bx * gas.bx;
         let sh = self.params.alpha_nu * self.params.omega / (self.params.c * self.params.c * eb);
-        for j in 0..g.len() {
-            // Gas ghosts: use the MHD ghost values when filled (ρ > 0), else the nearest/periodic
-            // interior cell.
-            let src = if j >= ng && j < ng + n {
-                j
-            } else {
-                let periodic = matches!(self.params.boundaries.left, CrBoundary::Periodic);
-                if periodic {
-                    if j < ng {
-                        j + n
-                    } else {
-                        j - n
-                    }
-                } else if gas.rho[j] > 0.0 && gas.rho[j].is_finite() {
-                    j
-                } else if j < ng {
-                    ng
-                } else {
-                    ng + n - 1
-                }
-            };
-            let mut v = gas.mx[src] / gas.rho[src];
-            let interior = j >= ng && j < ng + n;
-            if !interior && src != j {
-                // The gas ghost was not filled: mirror the velocity at a reflecting side.
-                let reflect = if j < ng {
-                    matches!(self.params.boundaries.left, CrBoundary::Reflecting)
-                } else {
-                    matches!(self.params.boundaries.right, CrBoundary::Reflecting)
-                };
-                if reflect && !matches!(self.params.boundaries.left, CrBoundary::Periodic) {
-                    v = -v;
+        let (mx, rho) = (
+            gas.mx.as_slice().expect("c"),
+            gas.rho.as_slice().expect("c"),
+        );
+        let sv = &mut self.scratch.v;
+        for j in ng..ng + n {
+            sv[j] = mx[j] / rho[j];
+        }
+        for j in (0..ng).chain(ng + n..g.len()) {
+            let (src, mirror) = self.gas_source(gas, j);
+            let v = gas.mx[src] / gas.rho[src];
+            self.scratch.v[j] = if mirror { -v } else { v };
+        }
+        let gc = self.params.gamma_c;
+        let s = &mut self.scratch;
+        match self.params.model {
+            TransportModel::SelfConfined => {
+                for ((sg, a), b) in s.sig.iter_mut().zip(er.iter()).zip(el.iter()) {
+                    *sg = sh * (a + b);
                 }
             }
-            self.scratch.v[j] = v;
-            let va = match self.params.model {
-                TransportModel::FixedKappa { .. } => 0.0,
-                _ => self.alfven(gas, src),
-            };
-            self.scratch.va[j] = va;
-            self.scratch.sig[j] = match self.params.model {
-                TransportModel::SelfConfined => sh * (er[j] + el[j]),
-                TransportModel::FixedKappa { kappa } => 1.0 / (3.0 * kappa),
-                TransportModel::Streaming {
-                    kappa,
-                    kappa_decoupled,
-                } => {
-                    let h = self.params.gamma_c * cr.e_c[j];
-                    if cr.f[j].abs() >= va * h {
+            TransportModel::FixedKappa { kappa } => s.sig.fill(1.0 / (3.0 * kappa)),
+            TransportModel::Streaming {
+                kappa,
+                kappa_decoupled,
+            } => {
+                for j in 0..g.len() {
+                    let h = gc * cr.e_c[j];
+                    s.sig[j] = if cr.f[j].abs() >= s.va[j] * h {
                         1.0 / (3.0 * kappa) + 1.0 / (3.0 * kappa_decoupled)
                     } else {
                         1.0 / (3.0 * kappa_decoupled)
-                    }
+                    };
                 }
-            };
+            }
         }
     }
 
@@ -455,7 +474,13 @@ impl CrSolver {
                 let sig = 0.5 * (s.sig[jl] + s.sig[jr]);
                 let tau = 3.0 * cw * dx * sig; // = c_w Δx / κ_eff
                 let t2 = tau * tau;
-                let phi = if t2 < 1e-8 { 1.0 } else { -(-t2).exp_m1() / t2 };
+                let phi = if t2 < 1e-8 {
+                    1.0
+                } else if t2 > 40.0 {
+                    1.0 / t2
+                } else {
+                    -(-t2).exp_m1() / t2
+                };
                 let hs = gc * (ecm + ecp);
                 let vst = if hs > 0.0 { (fm + fp).abs() / hs } else { 0.0 };
                 (phi * cw).max(vst).min(cw)
@@ -574,6 +599,8 @@ impl CrSolver {
             }
         }
         let dx = g.dx();
+        let ratio_hi = p.tolerances.tol_a.exp();
+        let ratio_lo = 1.0 / ratio_hi;
         let mut sum = Transfer::default();
         for j in g.interior() {
             let (er, el) = if pos {
@@ -591,10 +618,7 @@ impl CrSolver {
             };
             let ctx = CellCtx {
                 rho: gas.rho[j],
-                va: match p.model {
-                    TransportModel::FixedKappa { .. } => 0.0,
-                    _ => self.alfven(gas, j),
-                },
+                va: self.scratch.va[j],
                 cr2: p.c_r * p.c_r,
                 sigma_hat,
                 gamma_c: p.gamma_c,
@@ -602,6 +626,8 @@ impl CrSolver {
                 grad_pc: self.scratch.grad_pc[j],
                 work_form: p.work_form,
                 model: p.model,
+                ratio_lo,
+                ratio_hi,
             };
             let gref: &State = gas;
             let (c1, tr) = exchange_cell(&ctx, c0, dt, &p.tolerances, |e, r| {
@@ -656,6 +682,8 @@ impl CrSolver {
         self.check(cr, gas)?;
         self.heating.fill(0.0);
         self.apply_boundaries(cr, gas);
+        self.fill_alfven(gas);
+        self.fill_cell_speeds(cr, gas);
         self.exchange_cells(cr, gas, damping, dt, 1.0, &mut rep)?;
         if dt > 0.0 {
             self.heating.mapv_inplace(|x| x / dt);
@@ -677,6 +705,8 @@ impl CrSolver {
         let mut rep = CrReport::default();
         self.heating.fill(0.0);
         self.apply_boundaries(cr, gas);
+        self.fill_alfven(gas);
+        self.fill_cell_speeds(cr, gas);
         self.exchange_cells(cr, gas, damping, dt, 1.0, &mut rep)?;
         if dt > 0.0 {
             self.heating.mapv_inplace(|x| x / dt);
@@ -702,6 +732,7 @@ impl CrSolver {
         if dt == 0.0 {
             return Ok(rep);
         }
+        self.fill_alfven(gas);
         let dtc = self.max_dt_cr(gas);
         let nsub = (dt / dtc).ceil().max(1.0);
         if nsub.is_nan() || nsub > self.params.max_subcycles as f64 {
