@@ -56,6 +56,9 @@ pub struct MhdSolver {
     flux: Vec<[f64; 7]>,
     /// Copy of the state at the start of the step (7 arrays, storage length).
     u0: [Vec<f64>; 7],
+    /// Interior cells flagged by the last stage update (ρ or p below floor, or non-finite);
+    /// capacity n, so pushing never allocates.
+    bad: Vec<usize>,
 }
 
 /// Stage coefficients (a, w): U ← a U⁰ + (1 − a)(U + Δt L(U)); w is the weight of the stage's
@@ -162,6 +165,7 @@ impl MhdSolver {
             w_minus: z.clone(),
             flux: z,
             u0: std::array::from_fn(|_| vec![0.0; len]),
+            bad: Vec::with_capacity(grid.n),
         })
     }
 
@@ -404,12 +408,18 @@ impl MhdSolver {
         Ok(())
     }
 
-    /// U ← a U⁰ + (1 − a)(U − Δt/Δx (F_{j+1/2} − F_{j−1/2})) on the interior (one pass).
+    /// U ← a U⁰ + (1 − a)(U − Δt/Δx (F_{j+1/2} − F_{j−1/2})) on the interior (one pass);
+    /// flags cells below the floors (or non-finite) in `self.bad`.
     fn update(&mut self, state: &mut State, a: f64, dt: f64) {
         let dtdx = dt / self.grid.dx();
         let r = self.grid.interior();
         let b = 1.0 - a;
         let iso = self.gas.iso;
+        let gm1 = self.gas.gm1;
+        let bx2h = 0.5 * state.bx * state.bx;
+        let (rho_min, p_min) = (self.config.floors.rho_min, self.config.floors.p_min);
+        let bad = &mut self.bad;
+        bad.clear();
         let [rho, mx, my, mz, en, by, bz] = state_slices_mut(state);
         let (rho, mx, my, mz) = (
             &mut rho[r.clone()],
@@ -434,6 +444,21 @@ impl MhdSolver {
             }
             by[i] = upd(by[i], 5);
             bz[i] = upd(bz[i], 6);
+            // Flag cells for the safeguard / floors (NaN fails every comparison).
+            let d = rho[i];
+            let ok = if iso {
+                d >= rho_min && (mx[i] + my[i] + mz[i] + by[i] + bz[i]).is_finite()
+            } else {
+                let p = gm1
+                    * (en[i]
+                        - 0.5 * (mx[i] * mx[i] + my[i] * my[i] + mz[i] * mz[i]) / d
+                        - bx2h
+                        - 0.5 * (by[i] * by[i] + bz[i] * bz[i]));
+                d >= rho_min && d.is_finite() && p >= p_min && p.is_finite()
+            };
+            if !ok {
+                bad.push(r.start + i);
+            }
         }
     }
 
@@ -453,20 +478,8 @@ impl MhdSolver {
         };
         let mut count = 0;
         let [rho, mx, my, mz, en, by, bz] = state_slices_mut(state);
-        for j in r.clone() {
-            let d = rho[j];
-            let bad = if gas.iso {
-                !(d >= rho_min && d.is_finite())
-            } else {
-                let p = gas.gm1
-                    * (en[j]
-                        - 0.5 * (mx[j] * mx[j] + my[j] * my[j] + mz[j] * mz[j]) / d
-                        - 0.5 * (bx * bx + by[j] * by[j] + bz[j] * bz[j]));
-                !(d >= rho_min && p >= p_min && p.is_finite())
-            };
-            if !bad {
-                continue;
-            }
+        for idx in 0..self.bad.len() {
+            let j = self.bad[idx];
             count += 1;
             for f in [j - 1, j] {
                 let (wl, wr) = (self.prim[f], self.prim[f + 1]);
@@ -515,36 +528,75 @@ impl MhdSolver {
         let (rho_min, p_min) = (self.config.floors.rho_min, self.config.floors.p_min);
         let grid = self.grid;
         let [rho, mx, my, mz, en, by, bz] = state_slices_mut(state);
-        for j in grid.interior() {
-            let mut d = rho[j];
-            let vals = [d, mx[j], my[j], mz[j], en[j], by[j], bz[j]];
-            if vals.iter().any(|x| !x.is_finite()) {
-                return Err(MhdError::Unphysical {
-                    cell: j - grid.ng,
-                    x: grid.x_center(j),
-                    what: format!("non-finite conserved state {vals:?}"),
-                });
-            }
-            if d < rho_min {
-                rep.rho_floor_hits += 1;
-                rep.floor_mass += carry * (rho_min - d) * dx;
-                d = rho_min;
-                rho[j] = d;
-            }
-            if !gas.iso {
-                let kin = 0.5 * (mx[j] * mx[j] + my[j] * my[j] + mz[j] * mz[j]) / d;
-                let mag = 0.5 * (bx * bx + by[j] * by[j] + bz[j] * bz[j]);
-                let p = gas.gm1 * (en[j] - kin - mag);
-                if p < p_min {
-                    let de = (p_min - p) * gas.inv_gm1;
-                    rep.p_floor_hits += 1;
-                    rep.floor_energy += carry * de * dx;
-                    en[j] += de;
+        let r = grid.interior();
+        for idx in 0..self.bad.len() {
+            let c = self.bad[idx];
+            for j in [c - 1, c, c + 1] {
+                if j < r.start || j >= r.end {
+                    continue;
                 }
+                floor_cell(
+                    j,
+                    &grid,
+                    gas,
+                    bx,
+                    dx,
+                    rho_min,
+                    p_min,
+                    carry,
+                    rep,
+                    [
+                        &mut *rho, &mut *mx, &mut *my, &mut *mz, &mut *en, &mut *by, &mut *bz,
+                    ],
+                )?;
             }
         }
         Ok(())
     }
+}
+
+/// Applies the density and pressure floors to storage cell `j` (see [`MhdSolver::step`]).
+#[allow(clippy::too_many_arguments)]
+fn floor_cell(
+    j: usize,
+    grid: &Grid,
+    gas: Gas,
+    bx: f64,
+    dx: f64,
+    rho_min: f64,
+    p_min: f64,
+    carry: f64,
+    rep: &mut StepReport,
+    arrs: [&mut [f64]; 7],
+) -> Result<(), MhdError> {
+    let [rho, mx, my, mz, en, by, bz] = arrs;
+    let mut d = rho[j];
+    let vals = [d, mx[j], my[j], mz[j], en[j], by[j], bz[j]];
+    if vals.iter().any(|x| !x.is_finite()) {
+        return Err(MhdError::Unphysical {
+            cell: j - grid.ng,
+            x: grid.x_center(j),
+            what: format!("non-finite conserved state {vals:?}"),
+        });
+    }
+    if d < rho_min {
+        rep.rho_floor_hits += 1;
+        rep.floor_mass += carry * (rho_min - d) * dx;
+        d = rho_min;
+        rho[j] = d;
+    }
+    if !gas.iso {
+        let kin = 0.5 * (mx[j] * mx[j] + my[j] * my[j] + mz[j] * mz[j]) / d;
+        let mag = 0.5 * (bx * bx + by[j] * by[j] + bz[j] * bz[j]);
+        let p = gas.gm1 * (en[j] - kin - mag);
+        if p < p_min {
+            let de = (p_min - p) * gas.inv_gm1;
+            rep.p_floor_hits += 1;
+            rep.floor_energy += carry * de * dx;
+            en[j] += de;
+        }
+    }
+    Ok(())
 }
 
 /// Copies storage cell `src` to `dst`; `sign_vx` multiplies ρv_x.
