@@ -165,7 +165,7 @@ impl CrParams {
                 right: CrBoundary::Periodic,
             },
             tolerances: ExchangeTolerances::default(),
-            cfl: 0.5,
+            cfl: 0.8,
             max_subcycles: 100_000,
             coupling: Coupling::InTransport,
         }
