@@ -288,3 +288,74 @@ with h5py.File({file:?}, "w", libver="{libver}") as f:
         assert_eq!(snap.dataset("/x").unwrap().data, vec![0.0, 1.0, 2.0, 3.0]);
     }
 }
+
+/// The real program: `sluice run problems/sod.toml` writes snapshots that h5py
+/// opens, with root attributes, every dataset a 1D float64 array carrying a
+/// `units` string, and h5py's view equal bit for bit to Sluice's own reader.
+/// Field names are discovered, not assumed.
+#[test]
+fn sluice_run_snapshots_read_by_h5py() {
+    require_h5py();
+    let deck = Path::new(env!("CARGO_MANIFEST_DIR")).join("problems/sod.toml");
+    assert!(deck.exists(), "missing deck {}", deck.display());
+    let dir = TmpDir::new("sod");
+    let out_dir = dir.0.join("out");
+    let out = Command::new(env!("CARGO_BIN_EXE_sluice"))
+        .arg("run")
+        .arg(&deck)
+        .arg("--out")
+        .arg(&out_dir)
+        .arg("--quiet")
+        .output()
+        .expect("run the sluice binary");
+    assert!(
+        out.status.success(),
+        "sluice run failed ({}):\n{}{}",
+        out.status,
+        String::from_utf8_lossy(&out.stdout),
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let mut files: Vec<PathBuf> = std::fs::read_dir(&out_dir)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|x| x == "h5"))
+        .collect();
+    files.sort();
+    assert!(
+        !files.is_empty(),
+        "no .h5 snapshot in {}",
+        out_dir.display()
+    );
+    // No temporary file of the atomic writer may be left behind.
+    let leftovers: Vec<_> = std::fs::read_dir(&out_dir)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| n.contains(".tmp-"))
+        .collect();
+    assert!(leftovers.is_empty(), "temporary files left: {leftovers:?}");
+
+    let mut check = vec![files[0].clone()];
+    if files.len() > 1 {
+        check.push(files[files.len() - 1].clone());
+    }
+    for file in check {
+        let dump = dir.0.join("dump.json");
+        let (ok, text) = run_script(&[&file, Path::new("--structure"), Path::new("--dump"), &dump]);
+        assert!(
+            ok,
+            "h5py structure check of {} failed:\n{text}",
+            file.display()
+        );
+        let seen: Value = serde_json::from_str(&std::fs::read_to_string(&dump).unwrap()).unwrap();
+        let ours = snapshot::read(&file).unwrap_or_else(|e| panic!("{e}"));
+        assert!(!ours.attrs.is_empty() && !ours.datasets.is_empty());
+        let mut expect = expectations(&ours);
+        expect["groups_with_attrs"] = json!([]);
+        expect.as_object_mut().unwrap().remove("exact_members");
+        assert!(
+            seen == expect,
+            "h5py and snapshot::read disagree on {}",
+            file.display()
+        );
+    }
+}
