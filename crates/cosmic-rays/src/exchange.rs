@@ -88,8 +88,9 @@ pub fn logistic(e0: f64, a: f64, b: f64, dt: f64) -> (f64, f64) {
         };
         (e1, int)
     } else {
-        let g = if at.abs() < 1e-8 {
-            dt * (1.0 + 0.5 * at)
+        // g = (e^{At} − 1)/A; Taylor series for small |At| (truncation (At)⁴/120 < 1e-14).
+        let g = if at.abs() < 1e-3 {
+            dt * (1.0 + at * (0.5 + at * (1.0 / 6.0 + at / 24.0)))
         } else {
             at.exp_m1() / a
         };

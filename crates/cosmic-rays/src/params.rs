@@ -137,7 +137,8 @@ pub struct CrParams {
     pub boundaries: CrBoundaryPair,
     /// Exchange accuracy control.
     pub tolerances: ExchangeTolerances,
-    /// Courant number of the transport subcycles, 0 < C ≤ 1 (default 0.5); Δt_cr = C Δx/(|v| + c_r/√3).
+    /// Courant number of the transport subcycles, 0 < C ≤ 1 (default 0.8, physics-detail §7);
+    /// Δt_cr = C Δx / max(|v| + c_r/√3, |v| + v_a).
     pub cfl: f64,
     /// Largest number of subcycles per `transport` call (default 100000).
     pub max_subcycles: usize,
