@@ -452,3 +452,86 @@ fn isothermal_and_reflecting_runs() {
         Some("grid.cells=64")
     );
 }
+
+/// Norm of the L1 error vector, √(Σ_k L1(δU_k)²) over the seven conserved variables (the
+/// error measure of Stone et al. 2008, §8.1), after one wave period.
+fn wave_period_error(cells: u64, family: &str, direction: &str) -> f64 {
+    // Background of the linear-wave test of Stone et al. 2008 (ApJS 178, 137, §8.1) in the
+    // B²/2 normalisation: ρ = 1, p = 3/5, γ = 5/3, b̃ = (1, √2, 1/2); here in gauss (× √(4π)).
+    let s4p = (4.0 * std::f64::consts::PI).sqrt();
+    let text = format!(
+        r#"
+[run]
+name = "wave"
+t_end = 1.0
+[grid]
+cells = {cells}
+x_min = -0.5
+x_max = 0.5
+[gas]
+gamma = 1.6666666666666667
+[mhd]
+integrator = "rk3"
+[magnetic_field]
+x = {bx}
+[boundaries]
+left = "periodic"
+right = "periodic"
+[init.background]
+density = 1.0
+pressure = 0.6
+magnetic_field_y = {by}
+magnetic_field_z = {bz}
+[init.wave]
+family = "{family}"
+amplitude = 1e-6
+direction = "{direction}"
+"#,
+        bx = s4p,
+        by = 2f64.sqrt() * s4p,
+        bz = 0.5 * s4p
+    );
+    let deck = crate::deck::parse_deck(&text, &[]).unwrap();
+    let u = crate::Units::default();
+    let speed = crate::setup::wave_speed(&deck, &u).unwrap();
+    let period = 1.0 / speed.abs();
+    let mut sim = Simulation::from_toml_str(&text, &[format!("run.t_end={period}")]).unwrap();
+    let u0 = sim.state().clone();
+    sim.advance_to(sim.t_end()).unwrap();
+    let st = sim.state();
+    let g = st.grid;
+    let l1 = |a: &ndarray::Array1<f64>, b: &ndarray::Array1<f64>| {
+        g.interior().map(|j| (a[j] - b[j]).abs()).sum::<f64>() / g.n as f64
+    };
+    let comps = [
+        l1(&st.rho, &u0.rho),
+        l1(&st.mx, &u0.mx),
+        l1(&st.my, &u0.my),
+        l1(&st.mz, &u0.mz),
+        l1(&st.en, &u0.en),
+        l1(&st.by, &u0.by),
+        l1(&st.bz, &u0.bz),
+    ];
+    comps.iter().map(|c| c * c).sum::<f64>().sqrt()
+}
+
+#[test]
+fn deck_linear_waves_return_after_one_period_at_second_order() {
+    // Stone et al. 2008 (ApJS 178, 137, §8.1): with second-order reconstruction the L1 error
+    // of a linear wave after one period falls as N⁻²; we require an observed order ≥ 1.8 and an
+    // error far below the amplitude. A wrong wavenumber, phase speed or eigenvector in the
+    // generator breaks both.
+    for (family, dir) in [("fast", "right"), ("alfven", "left"), ("slow", "right")] {
+        let e_lo = wave_period_error(64, family, dir);
+        let e_hi = wave_period_error(128, family, dir);
+        let order = (e_lo / e_hi).log2();
+        assert!(
+            order >= 1.8,
+            "{family}/{dir}: order {order} (errors {e_lo:e}, {e_hi:e})"
+        );
+        assert!(
+            e_hi < 1e-7,
+            "{family}/{dir}: error {e_hi:e} vs amplitude 1e-6"
+        );
+    }
+}
