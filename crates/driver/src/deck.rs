@@ -100,15 +100,18 @@ pub struct Deck {
     pub boundaries: BoundariesSection,
     /// `[init]`: initial conditions.
     pub init: InitSection,
-    /// `[cosmic_rays]`: reserved for the cosmic-ray stage (not in this build).
+    /// `[cosmic_rays]`: the cosmic-ray stage (see [`crate::physics::sections`]).
     #[serde(default)]
-    pub cosmic_rays: Option<ReservedSection>,
-    /// `[damping]`: reserved for wave damping (not in this build).
+    pub cosmic_rays: Option<crate::physics::sections::CosmicRaysSection>,
+    /// `[damping]`: wave damping of the self-confined CR model.
     #[serde(default)]
-    pub damping: Option<ReservedSection>,
-    /// `[cooling]`: reserved for radiative cooling (not in this build).
+    pub damping: Option<crate::physics::sections::DampingSection>,
+    /// `[ionisation]`: ionised fraction for damping, the ion Alfvén speed and μ.
     #[serde(default)]
-    pub cooling: Option<ReservedSection>,
+    pub ionisation: Option<crate::physics::sections::IonisationSection>,
+    /// `[cooling]`: radiative cooling stage.
+    #[serde(default)]
+    pub cooling: Option<crate::physics::sections::CoolingSection>,
     /// `[slab]`: reserved for the dense-slab set-up generator (not in this build).
     #[serde(default)]
     pub slab: Option<ReservedSection>,
@@ -1061,12 +1064,8 @@ impl Deck {
             }
         }
         // Reserved sections.
-        for (name, sec, what) in [
-            ("cosmic_rays", &self.cosmic_rays, "the cosmic-ray stage"),
-            ("damping", &self.damping, "wave damping"),
-            ("cooling", &self.cooling, "radiative cooling"),
-            ("slab", &self.slab, "the dense-slab set-up"),
-        ] {
+        crate::physics::sections::validate(self)?;
+        for (name, sec, what) in [("slab", &self.slab, "the dense-slab set-up")] {
             if sec.is_some() {
                 return Err(DeckError::invalid(
                     name,
@@ -1324,8 +1323,8 @@ pressure = 0.1
 
     #[test]
     fn reserved_sections_are_rejected_clearly() {
-        let e = err_of(&format!("{SOD}\n[cosmic_rays]\nc_r = 1e9\n"), &[]);
-        assert_eq!(e.key(), Some("cosmic_rays"), "{e}");
+        let e = err_of(&format!("{SOD}\n[slab]\ndensity = 1e9\n"), &[]);
+        assert_eq!(e.key(), Some("slab"), "{e}");
     }
 
     #[test]

@@ -9,6 +9,7 @@
 pub mod check;
 pub mod deck;
 pub mod output;
+pub mod physics;
 pub mod setup;
 pub mod simulation;
 pub mod snapshot;

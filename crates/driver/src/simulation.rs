@@ -222,6 +222,11 @@ impl Simulation {
             initial_mass: 0.0,
         };
         sim.reset_ledger_origin();
+        for stage in crate::physics::build_stages(&sim.deck, &sim.units, &sim.state, &sim.solver)
+            .map_err(DriverError::Setup)?
+        {
+            sim.add_stage(stage)?;
+        }
         Ok(sim)
     }
 
