@@ -88,6 +88,8 @@ fn cmd_run(
     let dir = out.unwrap_or_else(|| default_out(deck_path, deck.run.output_dir.as_deref()));
     let mut sim = Simulation::from_deck(deck, text)?;
     sim.set_overrides(set.to_vec());
+    let expected = sim.output_times().len() + 1;
+    let stale = stale_snapshots(&dir, &sim.deck().run.name, expected);
     let progress = !quiet && std::io::stderr().is_terminal();
     let mut writer = OutputWriter::new(&dir, &sim, progress)?;
     let result = sim.run(&mut writer);
@@ -106,11 +108,40 @@ fn cmd_run(
         (Some(a), _) => format!("1 snapshot {}", a.display()),
         _ => "no snapshots".into(),
     };
+    if !stale.is_empty() {
+        eprintln!(
+            "sluice: note: {} holds {} older snapshot(s) of this run name beyond this run's last output (e.g. {}); they are from a previous run",
+            dir.display(),
+            stale.len(),
+            stale[0].display()
+        );
+    }
     println!(
         "sluice: {summary}; {where_}, ledger {}",
         writer.ledger_path().display()
     );
     Ok(())
+}
+
+/// Files `<name>_NNNN.h5` in `dir` with NNNN ≥ `expected` (left over from a longer run).
+fn stale_snapshots(dir: &Path, name: &str, expected: usize) -> Vec<PathBuf> {
+    let Ok(rd) = std::fs::read_dir(dir) else {
+        return Vec::new();
+    };
+    let prefix = format!("{name}_");
+    let mut v: Vec<PathBuf> = rd
+        .filter_map(|e| e.ok().map(|e| e.path()))
+        .filter(|p| {
+            p.file_name()
+                .and_then(|f| f.to_str())
+                .and_then(|f| f.strip_prefix(&prefix))
+                .and_then(|f| f.strip_suffix(".h5"))
+                .and_then(|k| k.parse::<usize>().ok())
+                .is_some_and(|k| k >= expected)
+        })
+        .collect();
+    v.sort();
+    v
 }
 
 fn cmd_check(deck_path: &Path, set: &[String]) -> Result<(), Failure> {
