@@ -56,7 +56,7 @@ check_tests! {
     cie_hui_gnedin_a_recombination => "damping.cie.hui_gnedin_a.recombination_1e4K",
     townsend_single_power_law_exact => "damping.townsend.single_power_law_exact",
     townsend_multi_segment_composition => "damping.townsend.multi_segment_composition",
-    townsend_multi_segment_vs_rk4 => "damping.townsend.multi_segment_vs_rk4",
+    townsend_multi_segment_vs_quadrature => "damping.townsend.multi_segment_vs_quadrature",
     townsend_hot_box_cooling_time => "damping.townsend.hot_box_cooling_time",
     ki02_lambda_100k => "damping.ki02.lambda_100K",
     ki02_lambda_1e3k => "damping.ki02.lambda_1e3K",

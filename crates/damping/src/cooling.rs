@@ -256,8 +256,9 @@ impl Ki02Cooler {
             } else {
                 hi = x;
             }
+            // Newton in u = ln T (f is close to exponential in T at large Δt).
             let dfx = 1.0 + c * p * self.model.dlambda_dt(x);
-            let newton = x - fx / dfx;
+            let newton = x * (-fx / (dfx * x)).exp();
             let next = if newton > lo && newton < hi && newton.is_finite() {
                 newton
             } else if lo > 0.0 {

@@ -58,6 +58,18 @@ impl Cen1992 {
     pub fn ionisation(&self, t: f64) -> f64 {
         self.ion_norm * t.sqrt() * (-self.ion_t / t).exp() / (1.0 + (t / self.ion_scale).sqrt())
     }
+
+    /// ln(Γ_eHI/α_HII) at T [K], evaluated in log form (no underflow of exp(−T_H/T)).
+    pub fn ln_ionisation_over_recombination(&self, t: f64) -> f64 {
+        let ln_t = t.ln();
+        let ln_a = self.rec_norm.ln()
+            - 0.5 * ln_t
+            - self.rec_t_exp * (t / self.rec_t_scale).ln()
+            - (t / self.rec_hi_scale).powf(self.rec_hi_exp).ln_1p();
+        let ln_g =
+            self.ion_norm.ln() + 0.5 * ln_t - self.ion_t / t - (t / self.ion_scale).sqrt().ln_1p();
+        ln_g - ln_a
+    }
 }
 
 /// Hui & Gnedin (1997) fits (from memory), λ = 2 T_H/T:
@@ -143,6 +155,17 @@ impl HuiGnedin1997 {
         self.ion_norm * t.powf(-1.5) * (-0.5 * l).exp() * l.powf(self.ion_p)
             / (1.0 + (l / self.ion_lambda0).powf(self.ion_q)).powf(self.ion_r)
     }
+
+    /// ln(Γ_ci/α) at T [K], evaluated in log form (no underflow of exp(−λ/2)).
+    pub fn ln_ionisation_over_recombination(&self, t: f64) -> f64 {
+        let l = 2.0 * self.t_hi / t;
+        let ln_l = l.ln();
+        let ln_a = self.rec_norm.ln() + self.rec_p * ln_l
+            - self.rec_r * (self.rec_q * (l / self.rec_lambda0).ln()).exp().ln_1p();
+        let ln_g = self.ion_norm.ln() - 1.5 * t.ln() - 0.5 * l + self.ion_p * ln_l
+            - self.ion_r * (self.ion_q * (l / self.ion_lambda0).ln()).exp().ln_1p();
+        ln_g - ln_a
+    }
 }
 
 /// Choice of CIE rate fits.
@@ -169,21 +192,21 @@ impl CieFit {
         }
     }
 
-    /// Neutral fraction in CIE, x_n = α/(α + Γ_ci), without floor. x_n = 1 for T ≤ 0 and where
-    /// the ionisation rate underflows; x_n → 0 where recombination is negligible.
+    /// Neutral fraction in CIE, x_n = α/(α + Γ_ci) = 1/(1 + exp ln(Γ_ci/α)), without floor;
+    /// x_n = 1 for T ≤ 0 (or NaN).
+    #[inline]
     pub fn neutral_fraction(&self, t: f64) -> f64 {
         if t.is_nan() || t <= 0.0 {
             return 1.0;
         }
-        let (a, g) = self.rates(t);
-        let s = a + g;
-        if s > 0.0 && s.is_finite() {
-            a / s
-        } else if g > 0.0 {
-            0.0
-        } else {
-            1.0
+        let d = match self {
+            CieFit::Cen1992(f) => f.ln_ionisation_over_recombination(t),
+            CieFit::HuiGnedin1997(f) => f.ln_ionisation_over_recombination(t),
+        };
+        if d.is_nan() {
+            return 1.0;
         }
+        1.0 / (1.0 + d.exp())
     }
 
     /// Temperature [K] at which x_n = `x_n` between 1e3 and 1e9 K (bisection in ln T; the CIE
@@ -384,6 +407,14 @@ mod tests {
             assert!(fit.neutral_fraction(1.0) == 1.0);
             assert_eq!(fit.neutral_fraction(0.0), 1.0);
             assert!(fit.neutral_fraction(1e8) < 1e-5);
+            // Log form equals the direct ratio of the rate coefficients.
+            for t in [5e3, 1.5e4, 3e4, 1e6] {
+                let (a, g) = fit.rates(t);
+                assert!(
+                    (fit.neutral_fraction(t) / (a / (a + g)) - 1.0).abs() < 1e-13,
+                    "T={t}"
+                );
+            }
         }
     }
 
