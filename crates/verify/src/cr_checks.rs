@@ -569,9 +569,9 @@ fn galilean() -> CheckResult {
             let nn = e0.len();
             let mut l1 = 0.0;
             let mut norm = 0.0;
-            for j in 0..nn {
+            for (j, e1j) in e1.iter().enumerate() {
                 let src = (j + nn - k) % nn;
-                l1 += (e1[j] - e0[src]).abs();
+                l1 += (e1j - e0[src]).abs();
                 norm += e0[src].abs();
             }
             max_check(name, SRC_GAL, l1 / norm, 0.0, 0.02)
