@@ -33,6 +33,9 @@ pub struct CheckReport {
     pub estimated_wall_seconds: f64,
     /// Snapshots the run will write (including t = 0).
     pub outputs: usize,
+    /// Derived quantities of the physics stages at t = 0 (c_r, c_r/v_max, CR subcycles per
+    /// step, κ range, Alfvén speed), one line each; see [`crate::physics::check_lines`].
+    pub physics: Vec<String>,
 }
 
 /// Builds the problem, measures signal speeds and Δt, and times a few steps (at most 20 steps
@@ -52,6 +55,7 @@ pub fn check_deck(deck: &Deck, text: &str) -> Result<CheckReport, DriverError> {
         cs = cs.max(sluice_mhd::sound_speed(&w, &eos));
         sig = sig.max(w.vx.abs() + f);
     }
+    let physics = crate::physics::check_lines(sim.deck(), &u, st, sim.solver());
     let dt0 = sim.stable_dt();
     if !(dt0.is_finite() && dt0 > 0.0) {
         return Err(DriverError::TimeStep {
@@ -86,6 +90,7 @@ pub fn check_deck(deck: &Deck, text: &str) -> Result<CheckReport, DriverError> {
         timing_steps: k,
         estimated_wall_seconds: per * est_steps as f64 * n as f64,
         outputs: deck.output_times().len() + 1,
+        physics,
     })
 }
 
@@ -129,6 +134,10 @@ impl std::fmt::Display for CheckReport {
             "estimated run time       {:.3} s",
             self.estimated_wall_seconds
         )?;
-        write!(f, "snapshots                {}", self.outputs)
+        write!(f, "snapshots                {}", self.outputs)?;
+        for line in &self.physics {
+            write!(f, "\n{line}")?;
+        }
+        Ok(())
     }
 }
