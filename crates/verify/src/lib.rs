@@ -9,6 +9,7 @@ use serde::Serialize;
 pub mod mhd_checks;
 pub mod cr_checks;
 pub mod damping_checks;
+pub mod coupled_checks;
 pub mod reference;
 
 /// Outcome of one check. Serialised with exactly the keys
@@ -51,6 +52,7 @@ pub fn all_checks() -> Vec<Check> {
     let mut v = mhd_checks::checks();
     v.extend(cr_checks::checks());
     v.extend(damping_checks::checks());
+    v.extend(coupled_checks::checks());
     v
 }
 
