@@ -203,3 +203,6 @@ pub fn check_lines(deck: &Deck, units: &Units, gas: &State, mhd: &MhdSolver) -> 
     let _ = eos;
     lines
 }
+
+#[cfg(test)]
+mod tests;
