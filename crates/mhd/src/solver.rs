@@ -46,14 +46,14 @@ pub struct MhdSolver {
     grid: Grid,
     gas: Gas,
     eps_deg: f64,
-    /// Primitive state per storage cell.
-    prim: Vec<[f64; 7]>,
-    /// Reconstructed state at the right edge (x_{j+1/2}⁻) of cell j.
-    w_plus: Vec<[f64; 7]>,
-    /// Reconstructed state at the left edge (x_{j−1/2}⁺) of cell j.
-    w_minus: Vec<[f64; 7]>,
-    /// flux[j] = flux through face j + 1/2.
-    flux: Vec<[f64; 7]>,
+    /// Primitive state per storage cell, one array per variable (structure of arrays).
+    prim: [Vec<f64>; 7],
+    /// Reconstructed state at the right edge (x_{j+1/2}⁻) of cell j, one array per variable.
+    w_plus: [Vec<f64>; 7],
+    /// Reconstructed state at the left edge (x_{j−1/2}⁺) of cell j, one array per variable.
+    w_minus: [Vec<f64>; 7],
+    /// flux[k][j] = component k of the flux through face j + 1/2.
+    flux: [Vec<f64>; 7],
     /// Copy of the state at the start of the step (7 arrays, storage length).
     u0: [Vec<f64>; 7],
     /// Interior cells flagged by the last stage update (ρ or p below floor, or non-finite);
@@ -102,13 +102,15 @@ fn mc(a: f64, b: f64) -> f64 {
     }
 }
 
-/// PLM face states of cells `lo..=hi` with limiter `lim` (monomorphised per limiter).
+/// PLM face states of cells `lo..=hi` with limiter `lim` (monomorphised per limiter), on
+/// structure-of-arrays storage: one pass per variable (vectorisable), then one positivity
+/// pass that drops a cell to first order if a face ρ or p would be below the floor.
 #[allow(clippy::too_many_arguments)]
 #[inline(always)]
 fn plm_faces(
-    prim: &[[f64; 7]],
-    wp: &mut [[f64; 7]],
-    wm: &mut [[f64; 7]],
+    prim: &[Vec<f64>; 7],
+    wp: &mut [Vec<f64>; 7],
+    wm: &mut [Vec<f64>; 7],
     lo: usize,
     hi: usize,
     gas: &Gas,
@@ -116,28 +118,44 @@ fn plm_faces(
     p_min: f64,
     lim: impl Fn(f64, f64) -> f64,
 ) {
+    // Cells lo..=hi need neighbours lo−1 ..= hi+1.
+    let nc = hi + 1 - lo;
+    for k in 0..7 {
+        let q = &prim[k][lo - 1..hi + 2];
+        let p = &mut wp[k][lo..=hi];
+        let m = &mut wm[k][lo..=hi];
+        if gas.iso && k == 4 {
+            // Isothermal: dp = c_s² dρ (p = c_s² ρ exactly tracks ρ).
+            let r = &prim[0][lo - 1..hi + 2];
+            for (((p, m), c), rw) in p
+                .iter_mut()
+                .zip(m.iter_mut())
+                .zip(&q[1..=nc])
+                .zip(r.windows(3))
+            {
+                let dw = gas.cs2 * (0.5 * lim(rw[1] - rw[0], rw[2] - rw[1]));
+                *p = c + dw;
+                *m = c - dw;
+            }
+            continue;
+        }
+        for ((p, m), w) in p.iter_mut().zip(m.iter_mut()).zip(q.windows(3)) {
+            let (a, c, b) = (w[0], w[1], w[2]);
+            let dw = 0.5 * lim(c - a, b - c);
+            *p = c + dw;
+            *m = c - dw;
+        }
+    }
+    // Positivity: drop to first order if a face ρ or p would be below the floor.
     for j in lo..=hi {
-        let (a, c, b) = (&prim[j - 1], &prim[j], &prim[j + 1]);
-        let mut dw = [0.0; 7];
-        for k in 0..7 {
-            dw[k] = 0.5 * lim(c[k] - a[k], b[k] - c[k]);
-        }
-        if gas.iso {
-            dw[4] = gas.cs2 * dw[0];
-        }
-        let mut p = [0.0; 7];
-        let mut m = [0.0; 7];
-        for k in 0..7 {
-            p[k] = c[k] + dw[k];
-            m[k] = c[k] - dw[k];
-        }
-        // Positivity: drop to first order if a face ρ or p would be below the floor.
-        if p[0] <= rho_min || m[0] <= rho_min || (!gas.iso && (p[4] <= p_min || m[4] <= p_min)) {
-            wp[j] = *c;
-            wm[j] = *c;
-        } else {
-            wp[j] = p;
-            wm[j] = m;
+        let bad = wp[0][j] <= rho_min
+            || wm[0][j] <= rho_min
+            || (!gas.iso && (wp[4][j] <= p_min || wm[4][j] <= p_min));
+        if bad {
+            for k in 0..7 {
+                wp[k][j] = prim[k][j];
+                wm[k][j] = prim[k][j];
+            }
         }
     }
 }
@@ -154,16 +172,16 @@ impl MhdSolver {
             });
         }
         let len = grid.len();
-        let z = vec![[0.0; 7]; len];
+        let z = || std::array::from_fn(|_| vec![0.0; len]);
         Ok(Self {
             config,
             grid,
             gas: Gas::new(&config.eos),
             eps_deg: HLLD_DEGENERACY_EPS,
-            prim: z.clone(),
-            w_plus: z.clone(),
-            w_minus: z.clone(),
-            flux: z,
+            prim: z(),
+            w_plus: z(),
+            w_minus: z(),
+            flux: z(),
             u0: std::array::from_fn(|_| vec![0.0; len]),
             bad: Vec::with_capacity(grid.n),
         })
@@ -318,11 +336,10 @@ impl MhdSolver {
             self.update(state, a, dt);
             rep.first_order_redos += self.redo_bad_cells(state, a, dt);
             // Boundary fluxes, weighted by the stage weight.
-            let lf = self.flux[self.grid.ng - 1];
-            let rf = self.flux[self.grid.ng + self.grid.n - 1];
+            let (jl, jr) = (self.grid.ng - 1, self.grid.ng + self.grid.n - 1);
             for k in 0..7 {
-                rep.inflow_left[k] += w * dt * lf[k];
-                rep.inflow_right[k] -= w * dt * rf[k];
+                rep.inflow_left[k] += w * dt * self.flux[k][jl];
+                rep.inflow_right[k] -= w * dt * self.flux[k][jr];
             }
             self.floors(state, carry, &mut rep)?;
         }
@@ -339,38 +356,49 @@ impl MhdSolver {
         let n = self.grid.n;
         {
             let [rho, mx, my, mz, en, by, bz] = state_slices(state);
-            let prim = &mut self.prim[..len];
-            for i in 0..len {
-                let d = rho[i];
+            let [pd, pu, pv, pw, pp, pby, pbz] = &mut self.prim;
+            let it = pd[..len]
+                .iter_mut()
+                .zip(&mut pu[..len])
+                .zip(&mut pv[..len])
+                .zip(&mut pw[..len])
+                .zip(&mut pp[..len])
+                .zip(rho.iter().zip(mx).zip(my).zip(mz).zip(en).zip(by).zip(bz));
+            for (((((od, ou), ov), ow), op), ((((((&d, &mx), &my), &mz), &en), &by), &bz)) in it {
                 let inv = 1.0 / d;
-                let (u, v, w) = (mx[i] * inv, my[i] * inv, mz[i] * inv);
-                let p = if gas.iso {
+                let (u, v, w) = (mx * inv, my * inv, mz * inv);
+                *op = if gas.iso {
                     gas.cs2 * d
                 } else {
                     gas.gm1
-                        * (en[i]
+                        * (en
                             - 0.5 * d * (u * u + v * v + w * w)
                             - bx2h
-                            - 0.5 * (by[i] * by[i] + bz[i] * bz[i]))
+                            - 0.5 * (by * by + bz * bz))
                 };
-                prim[i] = [d, u, v, w, p, by[i], bz[i]];
+                *od = d;
+                *ou = u;
+                *ov = v;
+                *ow = w;
             }
+            pby[..len].copy_from_slice(by);
+            pbz[..len].copy_from_slice(bz);
         }
         // Reconstruction for cells ng−1 ..= ng+n (the neighbours of the interior faces).
         let (lo, hi) = (ng - 1, ng + n);
         match self.config.reconstruction {
             Reconstruction::FirstOrder | Reconstruction::PlmCharacteristic(_) => {
-                for j in lo..=hi {
-                    self.w_plus[j] = self.prim[j];
-                    self.w_minus[j] = self.prim[j];
+                for k in 0..7 {
+                    self.w_plus[k][lo..=hi].copy_from_slice(&self.prim[k][lo..=hi]);
+                    self.w_minus[k][lo..=hi].copy_from_slice(&self.prim[k][lo..=hi]);
                 }
             }
             Reconstruction::Plm(lim) => {
                 let rho_min = self.config.floors.rho_min;
                 let p_min = self.config.floors.p_min;
-                let prim = &self.prim[..len];
-                let wp = &mut self.w_plus[..len];
-                let wm = &mut self.w_minus[..len];
+                let prim = &self.prim;
+                let wp = &mut self.w_plus;
+                let wm = &mut self.w_minus;
                 match lim {
                     Limiter::Minmod => {
                         plm_faces(prim, wp, wm, lo, hi, &gas, rho_min, p_min, minmod)
@@ -382,34 +410,56 @@ impl MhdSolver {
                 }
             }
         }
-        // Riemann problems at faces j + 1/2, j = ng−1 ..= ng+n−1.
+        // Riemann problems at faces j + 1/2, j = ng−1 ..= ng+n−1: left state w_plus[j],
+        // right state w_minus[j + 1]. All slices below have length nf, so the indexing in
+        // the loop is proven in range once by the slicing.
         let p_floor = self.config.floors.p_min;
         let eps = self.eps_deg;
         let use_hlld = matches!(self.config.riemann, RiemannKind::Hlld) && !gas.iso;
-        let wp = &self.w_plus[..len];
-        let wm = &self.w_minus[..len];
-        let flux = &mut self.flux[..len];
+        let nf = hi - lo;
+        let wl: [&[f64]; 7] = std::array::from_fn(|k| &self.w_plus[k][lo..hi]);
+        let wr: [&[f64]; 7] = std::array::from_fn(|k| &self.w_minus[k][lo + 1..=hi]);
+        let [f0, f1, f2, f3, f4, f5, f6] = &mut self.flux;
+        let (f0, f1, f2, f3) = (
+            &mut f0[lo..hi],
+            &mut f1[lo..hi],
+            &mut f2[lo..hi],
+            &mut f3[lo..hi],
+        );
+        let (f4, f5, f6) = (&mut f4[lo..hi], &mut f5[lo..hi], &mut f6[lo..hi]);
         let mut fallbacks = 0u64;
-        for j in lo..hi {
-            let (l, r) = (&wp[j], &wm[j + 1]);
-            flux[j] = if use_hlld {
-                match hlld(l, r, bx, &gas, p_floor, eps) {
+        for i in 0..nf {
+            let l = [
+                wl[0][i], wl[1][i], wl[2][i], wl[3][i], wl[4][i], wl[5][i], wl[6][i],
+            ];
+            let r = [
+                wr[0][i], wr[1][i], wr[2][i], wr[3][i], wr[4][i], wr[5][i], wr[6][i],
+            ];
+            let f = if use_hlld {
+                match hlld(&l, &r, bx, &gas, p_floor, eps) {
                     Some(f) => f,
                     None => {
                         fallbacks += 1;
-                        hlle(l, r, bx, &gas)
+                        hlle(&l, &r, bx, &gas)
                     }
                 }
             } else {
-                hlle(l, r, bx, &gas)
+                hlle(&l, &r, bx, &gas)
             };
+            f0[i] = f[0];
+            f1[i] = f[1];
+            f2[i] = f[2];
+            f3[i] = f[3];
+            f4[i] = f[4];
+            f5[i] = f[5];
+            f6[i] = f[6];
         }
         rep.hlld_fallbacks += fallbacks;
         Ok(())
     }
 
-    /// U ← a U⁰ + (1 − a)(U − Δt/Δx (F_{j+1/2} − F_{j−1/2})) on the interior (one pass);
-    /// flags cells below the floors (or non-finite) in `self.bad`.
+    /// U ← a U⁰ + (1 − a)(U − Δt/Δx (F_{j+1/2} − F_{j−1/2})) on the interior (one pass per
+    /// variable); flags cells below the floors (or non-finite) in `self.bad`.
     fn update(&mut self, state: &mut State, a: f64, dt: f64) {
         let dtdx = dt / self.grid.dx();
         let r = self.grid.interior();
@@ -420,40 +470,38 @@ impl MhdSolver {
         let (rho_min, p_min) = (self.config.floors.rho_min, self.config.floors.p_min);
         let bad = &mut self.bad;
         bad.clear();
-        let [rho, mx, my, mz, en, by, bz] = state_slices_mut(state);
-        let (rho, mx, my, mz) = (
-            &mut rho[r.clone()],
-            &mut mx[r.clone()],
-            &mut my[r.clone()],
-            &mut mz[r.clone()],
-        );
-        let (en, by, bz) = (&mut en[r.clone()], &mut by[r.clone()], &mut bz[r.clone()]);
-        let fl = &self.flux[r.start - 1..r.end - 1];
-        let fr = &self.flux[r.clone()];
-        let u0: [&[f64]; 7] = std::array::from_fn(|k| &self.u0[k][r.clone()]);
-        let n = rho.len();
-        for i in 0..n {
-            let (f0, f1) = (&fl[i], &fr[i]);
-            let upd = |u: f64, k: usize| a * u0[k][i] + b * (u - dtdx * (f1[k] - f0[k]));
-            rho[i] = upd(rho[i], 0);
-            mx[i] = upd(mx[i], 1);
-            my[i] = upd(my[i], 2);
-            mz[i] = upd(mz[i], 3);
-            if !iso {
-                en[i] = upd(en[i], 4);
+        let arrs = state_slices_mut(state);
+        for (k, u) in arrs.into_iter().enumerate() {
+            if iso && k == 4 {
+                continue;
             }
-            by[i] = upd(by[i], 5);
-            bz[i] = upd(bz[i], 6);
-            // Flag cells for the safeguard / floors (NaN fails every comparison).
-            let d = rho[i];
+            let u = &mut u[r.clone()];
+            let fl = &self.flux[k][r.start - 1..r.end - 1];
+            let fr = &self.flux[k][r.clone()];
+            let u0 = &self.u0[k][r.clone()];
+            for (((u, &u0), &f0), &f1) in u.iter_mut().zip(u0).zip(fl).zip(fr) {
+                *u = a * u0 + b * (*u - dtdx * (f1 - f0));
+            }
+        }
+        // Flag cells for the safeguard / floors (NaN fails every comparison).
+        let [rho, mx, my, mz, en, by, bz] = state_slices(state);
+        let it = rho[r.clone()]
+            .iter()
+            .zip(&mx[r.clone()])
+            .zip(&my[r.clone()])
+            .zip(&mz[r.clone()])
+            .zip(&en[r.clone()])
+            .zip(&by[r.clone()])
+            .zip(&bz[r.clone()]);
+        for (i, ((((((&d, &mx), &my), &mz), &en), &by), &bz)) in it.enumerate() {
             let ok = if iso {
-                d >= rho_min && (mx[i] + my[i] + mz[i] + by[i] + bz[i]).is_finite()
+                d >= rho_min && (mx + my + mz + by + bz).is_finite()
             } else {
                 let p = gm1
-                    * (en[i]
-                        - 0.5 * (mx[i] * mx[i] + my[i] * my[i] + mz[i] * mz[i]) / d
+                    * (en
+                        - 0.5 * (mx * mx + my * my + mz * mz) / d
                         - bx2h
-                        - 0.5 * (by[i] * by[i] + bz[i] * bz[i]));
+                        - 0.5 * (by * by + bz * bz));
                 d >= rho_min && d.is_finite() && p >= p_min && p.is_finite()
             };
             if !ok {
@@ -482,16 +530,17 @@ impl MhdSolver {
             let j = self.bad[idx];
             count += 1;
             for f in [j - 1, j] {
-                let (wl, wr) = (self.prim[f], self.prim[f + 1]);
+                let wl: [f64; 7] = std::array::from_fn(|k| self.prim[k][f]);
+                let wr: [f64; 7] = std::array::from_fn(|k| self.prim[k][f + 1]);
                 if !(good(&wl) && good(&wr)) {
                     continue;
                 }
                 let new = hlle(&wl, &wr, bx, &gas);
                 let mut delta = [0.0; 7];
                 for k in 0..7 {
-                    delta[k] = new[k] - self.flux[f][k];
+                    delta[k] = new[k] - self.flux[k][f];
+                    self.flux[k][f] = new[k];
                 }
-                self.flux[f] = new;
                 if gas.iso {
                     delta[4] = 0.0;
                 }
