@@ -103,7 +103,8 @@ pub(crate) fn hlld(
     // Symmetric form of p*_T (MK05 eq. 41); equals p_TL + ρ_L(S_L−u_L)(S_M−u_L).
     let pts = (rr * ptl - rl * ptr + rl * rr * (ur - ul)) / den;
 
-    let star = |s: &Side, sa: f64, ra: f64| -> Star {
+    // pt = total pressure p_T,α of the side (computed above, same expression).
+    let star = |s: &Side, sa: f64, ra: f64, pt: f64| -> Star {
         // sa = S_α, ra = ρ_α (S_α − u_α)
         let w = &s.w;
         let u = w[1];
@@ -121,7 +122,7 @@ pub(crate) fn hlld(
         };
         let vb = u * bx + w[2] * w[5] + w[3] * w[6];
         let vbs = sm * bx + v * by + ww * bz;
-        let e = ((sa - u) * s.u[4] - pt_of(w, bx2) * u + pts * sm + bx * (vb - vbs)) * inv_sm;
+        let e = ((sa - u) * s.u[4] - pt * u + pts * sm + bx * (vb - vbs)) * inv_sm;
         Star {
             rho,
             v,
@@ -131,8 +132,8 @@ pub(crate) fn hlld(
             e,
         }
     };
-    let stl = star(&l, sl, rl);
-    let str_ = star(&r, sr, rr);
+    let stl = star(&l, sl, rl, ptl);
+    let str_ = star(&r, sr, rr, ptr);
 
     // Positivity of the star states (gas pressure above the floor).
     let pstar = |s: &Star| {
@@ -272,11 +273,6 @@ fn fstar_of(side: &Side, sa: f64, us: &[f64; 7]) -> [f64; 7] {
         f[k] = side.f[k] + sa * (us[k] - side.u[k]);
     }
     f
-}
-
-#[inline(always)]
-fn pt_of(w: &[f64; 7], bx2: f64) -> f64 {
-    w[4] + 0.5 * (bx2 + w[5] * w[5] + w[6] * w[6])
 }
 
 /// HLLE interface flux between primitive states `left` and `right` (public wrapper).
