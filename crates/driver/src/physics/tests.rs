@@ -360,3 +360,21 @@ fn deck_errors_name_the_physics_keys() {
     let e = err(&["ionisation.model=\"fixed\""]);
     assert_eq!(e.key(), Some("ionisation.ion_fraction"), "{e}");
 }
+
+#[test]
+fn ion_alfven_speed_uses_the_ion_mass_fraction() {
+    // Definition (docs/deck.md): v_a = |B_x|/sqrt(4π ρ_i), ρ_i/ρ = x_i/(1 + 4y); here x_i = 0.05,
+    // y = 0.1, B = 3 μG, ρ = m_p-ish 1.6726e-24 g/cm³.
+    let text = deck(
+        "model = \"streaming\"\nkappa = 1e24\nalfven_density = \"ion\"",
+        "[ionisation]\nmodel = \"fixed\"\nion_fraction = 0.05\n",
+        true,
+        16,
+    );
+    let sim = Simulation::from_toml_str(&text, &[]).unwrap();
+    let va = field(&sim, 0, "alfven_speed");
+    let expect = 3e-6 / (4.0 * std::f64::consts::PI * 1.6726e-24 * 0.05 / 1.4).sqrt();
+    for v in va {
+        assert!((v / expect - 1.0).abs() < 1e-12, "{v} vs {expect}");
+    }
+}
