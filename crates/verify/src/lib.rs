@@ -6,10 +6,10 @@
 
 use serde::Serialize;
 
-pub mod mhd_checks;
+pub mod coupled_checks;
 pub mod cr_checks;
 pub mod damping_checks;
-pub mod coupled_checks;
+pub mod mhd_checks;
 pub mod reference;
 
 /// Outcome of one check. Serialised with exactly the keys
@@ -43,7 +43,10 @@ pub struct Check {
 
 impl std::fmt::Debug for Check {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.debug_struct("Check").field("name", &self.name).field("source", &self.source).finish()
+        f.debug_struct("Check")
+            .field("name", &self.name)
+            .field("source", &self.source)
+            .finish()
     }
 }
 
@@ -58,12 +61,18 @@ pub fn all_checks() -> Vec<Check> {
 
 /// Checks whose name contains `pattern` (all when `None`).
 pub fn select(pattern: Option<&str>) -> Vec<Check> {
-    all_checks().into_iter().filter(|c| pattern.is_none_or(|p| c.name.contains(p))).collect()
+    all_checks()
+        .into_iter()
+        .filter(|c| pattern.is_none_or(|p| c.name.contains(p)))
+        .collect()
 }
 
 /// Runs one check by exact name; `None` if unknown.
 pub fn run_named(name: &str) -> Option<CheckResult> {
-    all_checks().into_iter().find(|c| c.name == name).map(|c| (c.run)())
+    all_checks()
+        .into_iter()
+        .find(|c| c.name == name)
+        .map(|c| (c.run)())
 }
 
 /// Runs the given checks in parallel (rayon), results in input order.
@@ -73,25 +82,77 @@ pub fn run_all(checks: &[Check]) -> Vec<CheckResult> {
 }
 
 /// Builds a result where `pass` means |measured − expected| ≤ tolerance.
-pub fn abs_check(name: &str, source: &str, measured: f64, expected: f64, tolerance: f64) -> CheckResult {
+pub fn abs_check(
+    name: &str,
+    source: &str,
+    measured: f64,
+    expected: f64,
+    tolerance: f64,
+) -> CheckResult {
     let pass = measured.is_finite() && (measured - expected).abs() <= tolerance;
-    CheckResult { name: name.into(), source: source.into(), measured, expected, tolerance, pass }
+    CheckResult {
+        name: name.into(),
+        source: source.into(),
+        measured,
+        expected,
+        tolerance,
+        pass,
+    }
 }
 
 /// Builds a result where `pass` means |measured − expected| ≤ tolerance·|expected|.
-pub fn rel_check(name: &str, source: &str, measured: f64, expected: f64, tolerance: f64) -> CheckResult {
+pub fn rel_check(
+    name: &str,
+    source: &str,
+    measured: f64,
+    expected: f64,
+    tolerance: f64,
+) -> CheckResult {
     let pass = measured.is_finite() && (measured - expected).abs() <= tolerance * expected.abs();
-    CheckResult { name: name.into(), source: source.into(), measured, expected, tolerance, pass }
+    CheckResult {
+        name: name.into(),
+        source: source.into(),
+        measured,
+        expected,
+        tolerance,
+        pass,
+    }
 }
 
 /// Builds a result where `pass` means measured ≥ expected − tolerance (a lower bound, e.g. an order).
-pub fn min_check(name: &str, source: &str, measured: f64, expected: f64, tolerance: f64) -> CheckResult {
+pub fn min_check(
+    name: &str,
+    source: &str,
+    measured: f64,
+    expected: f64,
+    tolerance: f64,
+) -> CheckResult {
     let pass = measured.is_finite() && measured >= expected - tolerance;
-    CheckResult { name: name.into(), source: source.into(), measured, expected, tolerance, pass }
+    CheckResult {
+        name: name.into(),
+        source: source.into(),
+        measured,
+        expected,
+        tolerance,
+        pass,
+    }
 }
 
 /// Builds a result where `pass` means measured ≤ expected + tolerance (an upper bound, e.g. an error).
-pub fn max_check(name: &str, source: &str, measured: f64, expected: f64, tolerance: f64) -> CheckResult {
+pub fn max_check(
+    name: &str,
+    source: &str,
+    measured: f64,
+    expected: f64,
+    tolerance: f64,
+) -> CheckResult {
     let pass = measured.is_finite() && measured <= expected + tolerance;
-    CheckResult { name: name.into(), source: source.into(), measured, expected, tolerance, pass }
+    CheckResult {
+        name: name.into(),
+        source: source.into(),
+        measured,
+        expected,
+        tolerance,
+        pass,
+    }
 }
