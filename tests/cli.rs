@@ -1,31 +1,11 @@
 //! End-to-end tests of the `sluice` command: runs, checks, bad input, verify output.
 
+mod common;
+
+use common::{problem, sluice, text, ROOT};
 use sluice_driver::snapshot::{read, AttrValue};
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-const BIN: &str = env!("CARGO_BIN_EXE_sluice");
-const ROOT: &str = env!("CARGO_MANIFEST_DIR");
-
-fn sluice(args: &[&str]) -> Output {
-    Command::new(BIN)
-        .args(args)
-        .current_dir(ROOT)
-        .output()
-        .expect("cannot start the sluice binary")
-}
-
-fn text(b: &[u8]) -> String {
-    String::from_utf8_lossy(b).into_owned()
-}
-
-fn problem(name: &str) -> String {
-    Path::new(ROOT)
-        .join("problems")
-        .join(name)
-        .display()
-        .to_string()
-}
+use std::process::Output;
 
 #[test]
 fn run_sod_writes_snapshots_ledger_and_one_summary_line() {

@@ -2,32 +2,11 @@
 //! derived quantities, short runs write the CR/cooling fields with units and a closed ledger,
 //! bad physics input exits with code 2 naming the key.
 
+mod common;
+
+use common::{problem, sluice, text};
 use sluice_driver::snapshot::{read, AttrValue};
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-const BIN: &str = env!("CARGO_BIN_EXE_sluice");
-const ROOT: &str = env!("CARGO_MANIFEST_DIR");
-
-fn sluice(args: &[&str]) -> Output {
-    Command::new(BIN)
-        .args(args)
-        .current_dir(ROOT)
-        .output()
-        .expect("cannot start the sluice binary")
-}
-
-fn text(b: &[u8]) -> String {
-    String::from_utf8_lossy(b).into_owned()
-}
-
-fn problem(name: &str) -> String {
-    Path::new(ROOT)
-        .join("problems")
-        .join(name)
-        .display()
-        .to_string()
-}
 
 const DECKS: [&str; 5] = [
     "cr-pulse-diffusion.toml",

@@ -1,0 +1,31 @@
+//! Helpers shared by the end-to-end tests that run the `sluice` binary.
+
+use std::path::Path;
+use std::process::{Command, Output};
+
+const BIN: &str = env!("CARGO_BIN_EXE_sluice");
+/// The workspace root: the binary runs there and `problems/` lies below it.
+pub const ROOT: &str = env!("CARGO_MANIFEST_DIR");
+
+/// Runs `sluice` with `args` in the workspace root and returns its output.
+pub fn sluice(args: &[&str]) -> Output {
+    Command::new(BIN)
+        .args(args)
+        .current_dir(ROOT)
+        .output()
+        .expect("cannot start the sluice binary")
+}
+
+/// Bytes of a stream as text (lossy UTF-8).
+pub fn text(b: &[u8]) -> String {
+    String::from_utf8_lossy(b).into_owned()
+}
+
+/// Path of the shipped deck `problems/<name>`.
+pub fn problem(name: &str) -> String {
+    Path::new(ROOT)
+        .join("problems")
+        .join(name)
+        .display()
+        .to_string()
+}
