@@ -517,6 +517,66 @@ pub struct Profile {
     pub phase: Option<f64>,
 }
 
+impl Profile {
+    /// Profile value at `x` cm, in the field's cgs unit (validated profile).
+    pub fn value(&self, x: f64) -> f64 {
+        let kind = match self.shape {
+            ProfileShape::Gaussian => ShapeKind::Gaussian,
+            ProfileShape::TanhStep => ShapeKind::TanhStep,
+            ProfileShape::Sine => ShapeKind::Sine,
+        };
+        shape_value(
+            kind,
+            self.amplitude,
+            [self.center, self.width, self.wavelength, self.phase],
+            x,
+        )
+    }
+}
+
+/// Profile shapes known to any deck profile (gas `[[init.profiles]]` and
+/// `[[cosmic_rays.init.profiles]]`); each deck enum maps onto the ones it allows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) enum ShapeKind {
+    /// amplitude · exp(−(x − center)² / (2 width²)).
+    Gaussian,
+    /// amplitude for |x − center| < width, else 0.
+    TopHat,
+    /// amplitude · ½ [1 + tanh((x − center) / width)].
+    TanhStep,
+    /// amplitude · sin(2π x / wavelength + phase).
+    Sine,
+}
+
+/// Value at `x` cm of a profile of shape `kind`; `geometry` is
+/// `[center, width, wavelength, phase]` (cm, cm, cm, rad) as given in the deck, already
+/// validated (absent entries fall back to 0, 1, 1, 0).
+pub(crate) fn shape_value(
+    kind: ShapeKind,
+    amplitude: f64,
+    geometry: [Option<f64>; 4],
+    x: f64,
+) -> f64 {
+    let [center, width, wavelength, phase] = geometry;
+    let c = center.unwrap_or(0.0);
+    let w = width.unwrap_or(1.0);
+    match kind {
+        ShapeKind::Gaussian => amplitude * (-(x - c) * (x - c) / (2.0 * w * w)).exp(),
+        ShapeKind::TopHat => {
+            if (x - c).abs() < w {
+                amplitude
+            } else {
+                0.0
+            }
+        }
+        ShapeKind::TanhStep => amplitude * 0.5 * (1.0 + ((x - c) / w).tanh()),
+        ShapeKind::Sine => {
+            let l = wavelength.unwrap_or(1.0);
+            amplitude * (2.0 * std::f64::consts::PI * x / l + phase.unwrap_or(0.0)).sin()
+        }
+    }
+}
+
 /// `[init]`: background, then regions (later wins), then the wave, then profiles.
 #[derive(Debug, Clone, PartialEq, Deserialize, Default)]
 #[serde(deny_unknown_fields)]

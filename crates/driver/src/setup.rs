@@ -2,8 +2,8 @@
 //! all in code units.
 
 use crate::deck::{
-    BoundaryChoice, Deck, GasState, IntegratorChoice, LimiterChoice, Profile, ProfileField,
-    ProfileShape, ReconstructionChoice, RiemannChoice, WaveDirection, WaveFamily,
+    BoundaryChoice, Deck, GasState, IntegratorChoice, LimiterChoice, ProfileField,
+    ReconstructionChoice, RiemannChoice, WaveDirection, WaveFamily,
 };
 use crate::units::Units;
 use crate::DriverError;
@@ -101,23 +101,6 @@ pub fn solver_config(deck: &Deck, u: &Units) -> SolverConfig {
     }
 }
 
-fn profile_value(p: &Profile, x_cm: f64) -> f64 {
-    match p.shape {
-        ProfileShape::Gaussian => {
-            let (c, w) = (p.center.unwrap_or(0.0), p.width.unwrap_or(1.0));
-            p.amplitude * (-(x_cm - c) * (x_cm - c) / (2.0 * w * w)).exp()
-        }
-        ProfileShape::TanhStep => {
-            let (c, w) = (p.center.unwrap_or(0.0), p.width.unwrap_or(1.0));
-            p.amplitude * 0.5 * (1.0 + ((x_cm - c) / w).tanh())
-        }
-        ProfileShape::Sine => {
-            let l = p.wavelength.unwrap_or(1.0);
-            p.amplitude * (2.0 * std::f64::consts::PI * x_cm / l + p.phase.unwrap_or(0.0)).sin()
-        }
-    }
-}
-
 /// Builds the initial state (code units, ghosts filled by the caller's solver).
 ///
 /// Order: background, then regions (a cell belongs to the last region containing its centre),
@@ -142,7 +125,7 @@ pub fn initial_state(deck: &Deck, u: &Units, grid: &Grid) -> Result<State, Drive
             DriverError::Setup(format!("no region of init.regions covers the cell centred at x = {x_cm} cm and there is no init.background"))
         })?;
         for (i, p) in deck.init.profiles.iter().enumerate() {
-            let d = profile_value(p, x_cm);
+            let d = p.value(x_cm);
             match p.field {
                 ProfileField::Density => w.rho += d / u.density,
                 ProfileField::Pressure => w.p += d / u.pressure(),

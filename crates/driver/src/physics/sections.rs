@@ -4,7 +4,7 @@
 //! All inputs are cgs (the schema is documented in `docs/deck.md`, section "Physics
 //! sections"). Every error names the full key path, the value and what is allowed.
 
-use crate::deck::{BoundaryChoice, Deck, ProfileField};
+use crate::deck::{shape_value, BoundaryChoice, Deck, ProfileField, ShapeKind};
 use crate::DeckError;
 use serde::de::{self, Deserializer, Unexpected, Visitor};
 use serde::Deserialize;
@@ -215,24 +215,18 @@ pub struct CrProfile {
 impl CrProfile {
     /// Profile value at `x` cm (validated profile).
     pub fn value(&self, x: f64) -> f64 {
-        let c = self.center.unwrap_or(0.0);
-        let w = self.width.unwrap_or(1.0);
-        match self.shape {
-            CrProfileShape::Gaussian => self.amplitude * (-(x - c) * (x - c) / (2.0 * w * w)).exp(),
-            CrProfileShape::TopHat => {
-                if (x - c).abs() < w {
-                    self.amplitude
-                } else {
-                    0.0
-                }
-            }
-            CrProfileShape::TanhStep => self.amplitude * 0.5 * (1.0 + ((x - c) / w).tanh()),
-            CrProfileShape::Sine => {
-                let l = self.wavelength.unwrap_or(1.0);
-                self.amplitude
-                    * (2.0 * std::f64::consts::PI * x / l + self.phase.unwrap_or(0.0)).sin()
-            }
-        }
+        let kind = match self.shape {
+            CrProfileShape::Gaussian => ShapeKind::Gaussian,
+            CrProfileShape::TopHat => ShapeKind::TopHat,
+            CrProfileShape::TanhStep => ShapeKind::TanhStep,
+            CrProfileShape::Sine => ShapeKind::Sine,
+        };
+        shape_value(
+            kind,
+            self.amplitude,
+            [self.center, self.width, self.wavelength, self.phase],
+            x,
+        )
     }
 }
 
