@@ -81,6 +81,25 @@ pub fn run_all(checks: &[Check]) -> Vec<CheckResult> {
     checks.par_iter().map(|c| (c.run)()).collect()
 }
 
+/// The result of a check whose verdict `pass` is already decided.
+fn result(
+    name: &str,
+    source: &str,
+    measured: f64,
+    expected: f64,
+    tolerance: f64,
+    pass: bool,
+) -> CheckResult {
+    CheckResult {
+        name: name.into(),
+        source: source.into(),
+        measured,
+        expected,
+        tolerance,
+        pass,
+    }
+}
+
 /// Builds a result where `pass` means |measured − expected| ≤ tolerance.
 pub fn abs_check(
     name: &str,
@@ -90,14 +109,7 @@ pub fn abs_check(
     tolerance: f64,
 ) -> CheckResult {
     let pass = measured.is_finite() && (measured - expected).abs() <= tolerance;
-    CheckResult {
-        name: name.into(),
-        source: source.into(),
-        measured,
-        expected,
-        tolerance,
-        pass,
-    }
+    result(name, source, measured, expected, tolerance, pass)
 }
 
 /// Builds a result where `pass` means |measured − expected| ≤ tolerance·|expected|.
@@ -109,14 +121,7 @@ pub fn rel_check(
     tolerance: f64,
 ) -> CheckResult {
     let pass = measured.is_finite() && (measured - expected).abs() <= tolerance * expected.abs();
-    CheckResult {
-        name: name.into(),
-        source: source.into(),
-        measured,
-        expected,
-        tolerance,
-        pass,
-    }
+    result(name, source, measured, expected, tolerance, pass)
 }
 
 /// Builds a result where `pass` means measured ≥ expected − tolerance (a lower bound, e.g. an order).
@@ -128,14 +133,7 @@ pub fn min_check(
     tolerance: f64,
 ) -> CheckResult {
     let pass = measured.is_finite() && measured >= expected - tolerance;
-    CheckResult {
-        name: name.into(),
-        source: source.into(),
-        measured,
-        expected,
-        tolerance,
-        pass,
-    }
+    result(name, source, measured, expected, tolerance, pass)
 }
 
 /// Builds a result where `pass` means measured ≤ expected + tolerance (an upper bound, e.g. an error).
@@ -147,12 +145,5 @@ pub fn max_check(
     tolerance: f64,
 ) -> CheckResult {
     let pass = measured.is_finite() && measured <= expected + tolerance;
-    CheckResult {
-        name: name.into(),
-        source: source.into(),
-        measured,
-        expected,
-        tolerance,
-        pass,
-    }
+    result(name, source, measured, expected, tolerance, pass)
 }
