@@ -674,21 +674,10 @@ impl CrSolver {
         damping: &dyn WaveDamping,
         dt: f64,
     ) -> Result<CrReport, CrError> {
-        let mut rep = CrReport::default();
         if self.params.coupling == Coupling::InTransport {
-            return Ok(rep);
+            return Ok(CrReport::default());
         }
-        check_dt(dt)?;
-        self.check(cr, gas)?;
-        self.heating.fill(0.0);
-        self.apply_boundaries(cr, gas);
-        self.fill_alfven(gas);
-        self.fill_cell_speeds(cr, gas);
-        self.exchange_cells(cr, gas, damping, dt, 1.0, &mut rep)?;
-        if dt > 0.0 {
-            self.heating.mapv_inplace(|x| x / dt);
-        }
-        Ok(rep)
+        self.exchange_local(cr, gas, damping, dt)
     }
 
     /// Applies the exchange over `dt` regardless of [`Coupling`] (the local operator itself;
