@@ -598,6 +598,145 @@ fn read_attrs(
 }
 
 // ---------------------------------------------------------------------------
+// Reading selected datasets of any HDF5 file
+
+/// Reads the datasets at `paths` (e.g. `["/x", "/fields/rho"]`) from any HDF5 file, such as
+/// one written by h5py or by another code.
+///
+/// Unlike [`read`], the file need not follow the Sluice layout: groups may carry attributes
+/// and other objects are ignored. Each requested dataset must hold numbers (IEEE floats or
+/// integers of any width and byte order, converted to `f64`) and be 1D, or N-D with at most
+/// one dimension longer than 1 (e.g. a `(1, 1, N)` line-out of a 3D array), which is
+/// flattened. Contiguous, compact and chunked layouts are read, with the filters of the
+/// `hdf5-pure` backend (deflate/gzip, shuffle, Fletcher-32, LZF, scale-offset, among others);
+/// a dataset it cannot decode is an error naming the dataset and its layout and filters.
+///
+/// Each returned [`Dataset`] has the requested path (with a leading `/`), the values and the
+/// attributes that are scalars, `f64` arrays or strings (others, e.g. compound attributes,
+/// are left out: only `units` is used by Sluice). A missing path is an error listing the
+/// datasets present in the file.
+pub fn read_datasets(path: &Path, paths: &[&str]) -> Result<Vec<Dataset>, SnapshotError> {
+    let file = h5::File::open(path).map_err(|e| match e {
+        h5::Error::Io(source) => SnapshotError::Io {
+            path: path.to_path_buf(),
+            op: "open HDF5 file",
+            source,
+        },
+        other => SnapshotError::Format {
+            path: path.to_path_buf(),
+            msg: format!("not a readable HDF5 file: {other}"),
+        },
+    })?;
+    let fmt = |msg: String| SnapshotError::Format {
+        path: path.to_path_buf(),
+        msg,
+    };
+    let mut out = Vec::with_capacity(paths.len());
+    for &p in paths {
+        let full = if p.starts_with('/') {
+            p.to_string()
+        } else {
+            format!("/{p}")
+        };
+        let ds = match file.dataset(&full) {
+            Ok(d) => d,
+            Err(e) => {
+                let mut present = Vec::new();
+                list_datasets(&file.root(), "", &mut present);
+                present.sort();
+                let present = if present.is_empty() {
+                    "(none)".to_string()
+                } else {
+                    present.join(", ")
+                };
+                return Err(fmt(format!(
+                    "no dataset `{full}` ({e}); datasets in the file: {present}"
+                )));
+            }
+        };
+        let dtype = ds
+            .datatype()
+            .map_err(|e| fmt(format!("datatype of dataset `{full}`: {e}")))?;
+        if !matches!(
+            dtype,
+            h5::Datatype::FloatingPoint { .. } | h5::Datatype::FixedPoint { .. }
+        ) {
+            return Err(fmt(format!(
+                "dataset `{full}` has datatype {dtype:?}; allowed: floating-point or integer \
+                 numbers"
+            )));
+        }
+        let shape = ds
+            .shape()
+            .map_err(|e| fmt(format!("shape of dataset `{full}`: {e}")))?;
+        if shape.iter().filter(|&&d| d > 1).count() > 1 {
+            return Err(fmt(format!(
+                "dataset `{full}` has shape {shape:?}; allowed: 1D, or N-D with at most one \
+                 dimension longer than 1 (export the line-out as a 1D array)"
+            )));
+        }
+        let expected: u64 = shape.iter().product();
+        let data = ds.read_f64().map_err(|e| {
+            let layout = ds
+                .layout()
+                .map(|l| format!("{l:?}"))
+                .unwrap_or_else(|_| "unknown".into());
+            fmt(format!(
+                "reading dataset `{full}` (layout {layout}, filter ids {:?}): {e}; the reader \
+                 handles contiguous, compact and chunked datasets with the standard filters \
+                 (deflate/gzip, shuffle, Fletcher-32, LZF, scale-offset); rewrite the dataset \
+                 without other filters, e.g. h5py `create_dataset(name, data=a)`",
+                ds.filters()
+            ))
+        })?;
+        if data.len() as u64 != expected {
+            return Err(fmt(format!(
+                "dataset `{full}` read {} values but its shape is {shape:?}",
+                data.len()
+            )));
+        }
+        let mut attrs = Vec::new();
+        if let Ok(map) = ds.attrs() {
+            for (name, v) in map {
+                let value = match v {
+                    h5::AttrValue::F64(x) => AttrValue::F64(x),
+                    h5::AttrValue::I64(x) => AttrValue::I64(x),
+                    h5::AttrValue::F64Array(v) => AttrValue::F64s(v),
+                    h5::AttrValue::VarLenString(s)
+                    | h5::AttrValue::String(s)
+                    | h5::AttrValue::VarLenAsciiString(s)
+                    | h5::AttrValue::AsciiString(s) => AttrValue::Str(s),
+                    _ => continue,
+                };
+                attrs.push((name, value));
+            }
+        }
+        attrs.sort_by(|a, b| a.0.cmp(&b.0));
+        out.push(Dataset {
+            path: full,
+            data,
+            attrs,
+        });
+    }
+    Ok(out)
+}
+
+/// Collects the absolute paths of all datasets below `group` (best effort: unreadable
+/// groups are skipped; used only to list what exists in an error message).
+fn list_datasets(group: &h5::Group, prefix: &str, out: &mut Vec<String>) {
+    if let Ok(names) = group.datasets() {
+        out.extend(names.into_iter().map(|n| format!("{prefix}/{n}")));
+    }
+    if let Ok(groups) = group.groups() {
+        for name in groups {
+            if let Ok(child) = group.group(&name) {
+                list_datasets(&child, &format!("{prefix}/{name}"), out);
+            }
+        }
+    }
+}
+
+// ---------------------------------------------------------------------------
 
 #[cfg(test)]
 mod tests {
@@ -1080,5 +1219,22 @@ mod tests {
         let p = dir.0.join("./rel.h5");
         write_atomic(&p, &sample()).unwrap();
         assert_eq!(dir.entries(), ["rel.h5"]);
+    }
+
+    #[test]
+    fn read_datasets_selects_paths_and_lists_the_present_ones_when_missing() {
+        let dir = TmpDir::new("generic");
+        let p = dir.0.join("g.h5");
+        let snap = sample();
+        write_atomic(&p, &snap).unwrap();
+        let want = &snap.datasets[0];
+        let got = read_datasets(&p, &[want.path.trim_start_matches('/')]).unwrap();
+        assert_eq!(got.len(), 1);
+        assert_eq!(got[0].path, want.path);
+        let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
+        assert_eq!(bits(&got[0].data), bits(&want.data));
+        let err = read_datasets(&p, &["/no/such"]).unwrap_err().to_string();
+        assert!(err.contains("no dataset `/no/such`"), "{err}");
+        assert!(err.contains(&want.path), "{err}");
     }
 }
