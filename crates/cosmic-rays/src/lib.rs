@@ -41,6 +41,7 @@ pub mod exchange;
 pub mod params;
 pub mod solver;
 pub mod state;
+pub mod steady;
 
 pub use damping::{ConstantDamping, NoDamping, QuadraticDamping, WaveDamping, WaveDirection};
 pub use diagnostics::CrDiagnostics;
