@@ -146,10 +146,25 @@ pub fn run(a: CompareArgs) -> Result<(), Failure> {
         coverage,
         method,
     };
-    let report = compare(&reference.profile, &other.profile, &options).map_err(bad)?;
+    // Units first: a coordinate in other units would otherwise show up as a coverage error.
     let mut unit_keys: Vec<String> = vec!["x".into()];
-    unit_keys.extend(report.fields.iter().map(|f| f.field.clone()));
+    match &options.fields {
+        Some(f) => unit_keys.extend(f.iter().cloned()),
+        None => unit_keys.extend(
+            reference
+                .profile
+                .field_names()
+                .into_iter()
+                .filter(|n| other.profile.field(n).is_some())
+                .map(String::from),
+        ),
+    }
     let units = check_units(&unit_keys, &reference, &other, &scaled, &scales)?;
+    let report = compare(&reference.profile, &other.profile, &options).map_err(bad)?;
+    let units: BTreeMap<String, UnitsEntry> = units
+        .into_iter()
+        .filter(|(k, _)| k == "x" || report.fields.iter().any(|f| &f.field == k))
+        .collect();
 
     if let Some(plot) = &a.plot {
         super::compare_plot::write_overlay(plot, &reference.profile, &other.profile, &report)?;
