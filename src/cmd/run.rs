@@ -10,9 +10,16 @@ use std::path::{Path, PathBuf};
 /// Arguments of `sluice run`.
 #[derive(clap::Args)]
 pub struct RunArgs {
-    /// The deck (TOML, see docs/deck.md).
-    pub deck: PathBuf,
-    /// Output folder (default: run.output_dir of the deck, else out/<deck file stem>).
+    /// The deck (TOML, see docs/deck.md). Not given with --restart.
+    #[arg(required_unless_present = "restart")]
+    pub deck: Option<PathBuf>,
+    /// Continue the run stored in this snapshot (bit-identical to a run never stopped).
+    /// Only run.t_end, run.output_interval, run.output_times, run.output_dir and
+    /// run.max_steps may be changed with --set.
+    #[arg(long, value_name = "SNAPSHOT", conflicts_with = "deck")]
+    pub restart: Option<PathBuf>,
+    /// Output folder (default: run.output_dir of the deck, else out/<deck file stem>; with
+    /// --restart: run.output_dir if set with --set, else the snapshot's folder).
     #[arg(long)]
     pub out: Option<PathBuf>,
     /// Override a deck value: key.path=value (repeatable), e.g. --set grid.cells=800.
@@ -25,7 +32,59 @@ pub struct RunArgs {
 
 /// Runs `sluice run`.
 pub fn run(a: RunArgs) -> Result<(), Failure> {
-    cmd_run(&a.deck, a.out, &a.set, a.quiet)
+    match (&a.restart, &a.deck) {
+        (Some(snap), _) => cmd_restart(snap, a.out, &a.set, a.quiet),
+        (None, Some(deck)) => cmd_run(deck, a.out, &a.set, a.quiet),
+        (None, None) => Err(Failure("give a deck, or --restart SNAPSHOT".into(), 2)),
+    }
+}
+
+/// `sluice run --restart SNAPSHOT`: rebuild the run from the snapshot and continue it.
+fn cmd_restart(
+    snap_path: &Path,
+    out: Option<PathBuf>,
+    set: &[String],
+    quiet: bool,
+) -> Result<(), Failure> {
+    if !snap_path.is_file() {
+        return Err(Failure(
+            format!(
+                "--restart `{}`: no such file (give a snapshot <name>_NNNN.h5 written by sluice run)",
+                snap_path.display()
+            ),
+            2,
+        ));
+    }
+    let mut sim = Simulation::from_snapshot_file(snap_path, set)?;
+    let snap_dir = snap_path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .map(Path::to_path_buf)
+        .unwrap_or_else(|| PathBuf::from("."));
+    let set_dir = set
+        .iter()
+        .any(|s| s.trim_start().starts_with("run.output_dir"));
+    let dir = match (out, set_dir, sim.deck().run.output_dir.as_deref()) {
+        (Some(d), _, _) => d,
+        (None, true, Some(d)) => PathBuf::from(d),
+        _ => snap_dir.clone(),
+    };
+    let progress = !quiet && std::io::stderr().is_terminal();
+    let previous = snap_dir.join("ledger.csv");
+    let mut writer = OutputWriter::resume(&dir, &sim, progress, Some(&previous))?;
+    let (t0, step0) = (sim.time_seconds(), sim.steps());
+    let result = sim.run(&mut writer);
+    writer.finish();
+    let summary = result?;
+    let n = writer.written().len();
+    println!(
+        "sluice: restarted from {} at t = {t0:.6e} s (step {}); {summary}; {n} new snapshot(s) in {}, ledger {}",
+        snap_path.display(),
+        step0,
+        dir.display(),
+        writer.ledger_path().display()
+    );
+    Ok(())
 }
 
 pub fn default_out(deck_path: &Path, deck_dir: Option<&str>) -> PathBuf {

@@ -10,6 +10,7 @@ pub mod check;
 pub mod deck;
 pub mod output;
 pub mod physics;
+pub mod restart;
 pub mod setup;
 pub mod simulation;
 pub mod snapshot;
@@ -55,6 +56,9 @@ pub enum DriverError {
     /// Snapshot writing or reading.
     #[error(transparent)]
     Snapshot(#[from] snapshot::SnapshotError),
+    /// Restarting from a snapshot failed.
+    #[error(transparent)]
+    Restart(#[from] restart::RestartError),
     /// Other file-system failure.
     #[error("cannot write `{path}`: {message}")]
     Io {

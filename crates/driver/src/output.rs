@@ -143,6 +143,7 @@ pub fn build_snapshot(sim: &Simulation, index: usize) -> Snapshot {
         ds.push(field(&format!("/restart/gas/{name}"), sl(a), "code"));
     }
     ds.push(field("/restart/gas/field_x", vec![st.bx], "code"));
+    ds.extend(crate::restart::driver_datasets(sim));
     for s in sim.stages() {
         for f in s.checkpoint() {
             ds.push(field(
@@ -169,6 +170,15 @@ impl LedgerCsv {
     /// A CSV at `path` (truncated when the first row is written).
     pub fn new(path: PathBuf) -> Self {
         Self { path, header: None }
+    }
+
+    /// A CSV at `path` that already holds the header `time,step,<names>` (and rows): rows
+    /// are appended, and a row with other columns is refused.
+    pub fn resume(path: PathBuf, names: Vec<String>) -> Self {
+        Self {
+            path,
+            header: Some(names),
+        }
     }
 
     /// Path of the file.
@@ -262,6 +272,47 @@ impl OutputWriter {
             bar,
             t_end: sim.t_end(),
         })
+    }
+
+    /// Like [`OutputWriter::new`] for a run restarted from a snapshot (`sim` as built by
+    /// [`Simulation::from_snapshot`]): `<dir>/ledger.csv` keeps its rows with time ≤ the
+    /// restart time and new rows are appended. When `<dir>` has no ledger yet, the rows are
+    /// taken from `previous_ledger` (the ledger beside the snapshot), else a new ledger
+    /// starts with the row of the restart time. The cut file is written atomically.
+    pub fn resume(
+        dir: &Path,
+        sim: &Simulation,
+        progress: bool,
+        previous_ledger: Option<&Path>,
+    ) -> Result<Self, DriverError> {
+        let mut w = Self::new(dir, sim, progress)?;
+        let target = dir.join("ledger.csv");
+        let names: Vec<String> = sim.ledger().entries.into_iter().map(|e| e.name).collect();
+        let header = format!("time,step,{}", names.join(","));
+        let source = if target.is_file() {
+            Some(target.clone())
+        } else {
+            previous_ledger.filter(|p| p.is_file()).map(Path::to_path_buf)
+        };
+        match source {
+            Some(src) => {
+                let text = std::fs::read_to_string(&src).map_err(|e| DriverError::Io {
+                    path: src.display().to_string(),
+                    message: e.to_string(),
+                })?;
+                let kept = crate::restart::ledger_rows_until(&text, &header, sim.time_seconds())
+                    .map_err(|m| {
+                        DriverError::Setup(format!(
+                            "cannot continue the ledger `{}`: {m}",
+                            src.display()
+                        ))
+                    })?;
+                crate::restart::write_text_atomic(&target, &kept)?;
+                w.ledger = LedgerCsv::resume(target, names);
+            }
+            None => w.ledger.append(&sim.ledger())?,
+        }
+        Ok(w)
     }
 
     /// Snapshot files written so far.

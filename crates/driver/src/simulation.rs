@@ -146,6 +146,8 @@ pub struct Simulation {
     wall: Duration,
     initial_energy: f64,
     initial_mass: f64,
+    /// Output index of the snapshot this run was restarted from (None for a fresh run).
+    restart_index: Option<usize>,
 }
 
 impl std::fmt::Debug for Simulation {
@@ -220,6 +222,7 @@ impl Simulation {
             wall: Duration::ZERO,
             initial_energy: 0.0,
             initial_mass: 0.0,
+            restart_index: None,
         };
         sim.reset_ledger_origin();
         for stage in crate::physics::build_stages(&sim.deck, &sim.units, &sim.state, &sim.solver)
@@ -246,6 +249,38 @@ impl Simulation {
     /// The `--set` overrides recorded with [`Simulation::set_overrides`].
     pub fn overrides(&self) -> &[String] {
         &self.overrides
+    }
+
+    /// Ledger origin: (total energy, total mass) at t = 0 in code units per unit area.
+    pub(crate) fn ledger_origin(&self) -> (f64, f64) {
+        (self.initial_energy, self.initial_mass)
+    }
+
+    /// Output index of the snapshot this run was restarted from, if it was.
+    pub fn restart_index(&self) -> Option<usize> {
+        self.restart_index
+    }
+
+    /// Puts back the run bookkeeping of a snapshot (see [`crate::restart`]): time (code
+    /// units), counters, ledger origin (code units) and the snapshot's output index.
+    pub(crate) fn restore_run(
+        &mut self,
+        time: f64,
+        counters: Counters,
+        origin: (f64, f64),
+        index: usize,
+    ) {
+        self.time = time;
+        self.counters = counters;
+        self.initial_energy = origin.0;
+        self.initial_mass = origin.1;
+        self.restart_index = Some(index);
+    }
+
+    /// The MHD solver, the stages and the gas state, the latter two mutably (for restoring a
+    /// checkpoint).
+    pub(crate) fn parts_mut(&mut self) -> (&MhdSolver, &mut [Box<dyn Stage>], &mut State) {
+        (&self.solver, &mut self.stages, &mut self.state)
     }
 
     fn reset_ledger_origin(&mut self) {
@@ -462,15 +497,20 @@ impl Simulation {
     /// not started) and at every output time.
     pub fn run(&mut self, observer: &mut dyn Observer) -> Result<RunSummary, DriverError> {
         let times = self.output_times();
-        if self.counters.steps == 0 && self.time == 0.0 {
+        if self.counters.steps == 0 && self.time == 0.0 && self.restart_index.is_none() {
             observer.output(self, 0)?;
         }
+        // After a restart, outputs are numbered on from the snapshot's index (so a changed
+        // output cadence neither overwrites nor leaves gaps); otherwise by position in the list.
+        let mut next = self.restart_index.map(|k| k + 1);
         for (i, t) in times.into_iter().enumerate() {
             if t <= self.time {
                 continue;
             }
             self.advance_observed(t, &mut Some(observer))?;
-            observer.output(self, i + 1)?;
+            let index = next.unwrap_or(i + 1);
+            observer.output(self, index)?;
+            next = next.map(|k| k + 1);
         }
         Ok(self.summary())
     }

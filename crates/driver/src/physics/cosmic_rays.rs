@@ -468,7 +468,7 @@ impl Stage for CosmicRayStage {
             data: a.to_vec(),
             units: "code".into(),
         };
-        vec![
+        let mut out = vec![
             f("e_c", &self.cr.e_c),
             f("f", &self.cr.f),
             f("e_plus", &self.cr.e_plus),
@@ -478,7 +478,21 @@ impl Stage for CosmicRayStage {
                 data: vec![self.solver.params().c_r],
                 units: "code".into(),
             },
-        ]
+        ];
+        // The ion mass fraction of the last refresh enters the next step's max_dt (ion Alfvén
+        // speed), so a bit-exact restart needs it (storage cells, dimensionless).
+        if self.xi_update {
+            let xi = match &self.damping {
+                Some(d) => d.ion_mass_fraction().to_vec(),
+                None => self.xi_scratch.clone(),
+            };
+            out.push(OutputField {
+                name: "ion_mass_fraction".into(),
+                data: xi,
+                units: "1".into(),
+            });
+        }
+        out
     }
 
     fn restore(&mut self, data: &[OutputField]) -> Result<(), StageError> {
@@ -527,6 +541,16 @@ impl Stage for CosmicRayStage {
                     .solver
                     .set_c_r(d.data[0])
                     .map_err(|e| bad(e.to_string()))?,
+            }
+        }
+        if self.xi_update {
+            if let Some(d) = data.iter().find(|d| d.name == "ion_mass_fraction") {
+                self.solver
+                    .set_ion_fraction(&d.data)
+                    .map_err(|e| bad(format!("dataset `ion_mass_fraction`: {e}")))?;
+                if self.xi_scratch.len() == d.data.len() {
+                    self.xi_scratch.copy_from_slice(&d.data);
+                }
             }
         }
         Ok(())
