@@ -30,7 +30,7 @@ enum Command {
     /// Run the built-in checks against published results.
     Verify(cmd::verify::VerifyArgs),
     /// Compare a 1D profile from another code (CSV, columns or HDF5) with a reference.
-    Compare(cmd::compare::CompareArgs),
+    Compare(Box<cmd::compare::CompareArgs>),
     /// Run a deck at several resolutions and print errors and measured orders.
     Converge(cmd::converge::ConvergeArgs),
     /// Run a parameter ensemble in parallel (one summary row per run).
@@ -71,7 +71,7 @@ fn main() -> ExitCode {
         Command::Run(a) => cmd::run::run(a),
         Command::Check(a) => cmd::check::run(a),
         Command::Verify(a) => cmd::verify::run(a),
-        Command::Compare(a) => cmd::compare::run(a),
+        Command::Compare(a) => cmd::compare::run(*a),
         Command::Converge(a) => cmd::converge::run(a),
         Command::Sweep(a) => cmd::sweep::run(a),
         Command::Merge(a) => cmd::sweep::run_merge(a),

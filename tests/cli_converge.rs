@@ -91,7 +91,7 @@ fn linear_wave_converges_at_second_order_against_the_eigen_solution() {
     }
     let d = series(&v, "density (l1)");
     let last = d["rows"][2]["order"].as_f64().unwrap();
-    assert!(last >= 1.85 && last <= 2.2, "{last}");
+    assert!((1.85..=2.2).contains(&last), "{last}");
     // The same series asked for a third order fails with exit 1, naming the series.
     let o = sluice(&[
         "converge",

@@ -36,7 +36,7 @@ impl Axis {
             lo = lo.log10();
             hi = hi.log10();
         }
-        if !(hi > lo) {
+        if lo.is_nan() || hi.is_nan() || hi <= lo {
             let d = if lo == 0.0 { 1.0 } else { lo.abs() * 0.1 };
             lo -= d;
             hi += d;
