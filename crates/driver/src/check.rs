@@ -34,7 +34,9 @@ pub struct CheckReport {
     /// Snapshots the run will write (including t = 0).
     pub outputs: usize,
     /// Derived quantities of the physics stages at t = 0 (c_r, c_r/v_max, CR subcycles per
-    /// step, κ range, Alfvén speed), one line each; see [`crate::physics::check_lines`].
+    /// step, κ range, Alfvén speed), one line each; see [`crate::physics::check_lines`];
+    /// then the slab lines of [`crate::slab::check_lines`] (Alfvén speeds inside/outside,
+    /// time scales, the steady bottleneck plateau).
     pub physics: Vec<String>,
 }
 
@@ -55,7 +57,8 @@ pub fn check_deck(deck: &Deck, text: &str) -> Result<CheckReport, DriverError> {
         cs = cs.max(sluice_mhd::sound_speed(&w, &eos));
         sig = sig.max(w.vx.abs() + f);
     }
-    let physics = crate::physics::check_lines(sim.deck(), &u, st, sim.solver());
+    let mut physics = crate::physics::check_lines(sim.deck(), &u, st, sim.solver());
+    physics.extend(crate::slab::check_lines(&sim));
     let dt0 = sim.stable_dt();
     if !(dt0.is_finite() && dt0 > 0.0) {
         return Err(DriverError::TimeStep {

@@ -112,9 +112,9 @@ pub struct Deck {
     /// `[cooling]`: radiative cooling stage.
     #[serde(default)]
     pub cooling: Option<crate::physics::sections::CoolingSection>,
-    /// `[slab]`: reserved for the dense-slab set-up generator (not in this build).
+    /// `[slab]` or `[[slab]]`: dense slabs over `[init.background]` (see [`crate::slab`]).
     #[serde(default)]
-    pub slab: Option<ReservedSection>,
+    pub slab: Option<crate::slab::SlabSpec>,
 }
 
 /// Placeholder for a section whose physics is not built yet. It accepts any table so that the
@@ -1123,17 +1123,8 @@ impl Deck {
                 ));
             }
         }
-        // Reserved sections.
         crate::physics::sections::validate(self)?;
-        for (name, sec, what) in [("slab", &self.slab, "the dense-slab set-up")] {
-            if sec.is_some() {
-                return Err(DeckError::invalid(
-                    name,
-                    "(section present)",
-                    format!("no such section yet: {what} is not part of this build of Sluice"),
-                ));
-            }
-        }
+        crate::slab::validate(self)?;
         Ok(())
     }
 
@@ -1381,10 +1372,34 @@ pressure = 0.1
         assert!(ok.is_ok(), "{ok:?}");
     }
 
+    const SLAB_BG: &str = "[init.background]\ndensity = 1.0\npressure = 1.0\n";
+
+    fn slab_deck(slab: &str) -> String {
+        let head = SOD.split("[[init.regions]]").next().unwrap_or_default();
+        format!("{head}{SLAB_BG}{slab}")
+    }
+
     #[test]
-    fn reserved_sections_are_rejected_clearly() {
-        let e = err_of(&format!("{SOD}\n[slab]\ndensity = 1e9\n"), &[]);
-        assert_eq!(e.key(), Some("slab"), "{e}");
+    fn slab_tables_parse_and_bad_keys_name_their_path() {
+        let one = "[slab]\ncenter = 0.5\nwidth = 0.2\nedge = 0.02\ncontrast = 10\n";
+        let d = parse_deck(&slab_deck(one), &[]).unwrap();
+        assert_eq!(d.slab.as_ref().map(|s| s.0.len()), Some(1));
+        let two = "[[slab]]\ncenter = 0.25\nwidth = 0.1\nedge = 0.02\ncontrast = 10\n[[slab]]\ncenter = 0.75\nwidth = 0.1\nedge = 0.02\ncontrast = 4\nequilibrium = \"temperature\"\n";
+        let d = parse_deck(&slab_deck(two), &[]).unwrap();
+        assert_eq!(d.slab.as_ref().map(|s| s.0[1].contrast), Some(4.0));
+        let e = err_of(&slab_deck(&one.replace("contrast = 10", "contrst = 10")), &[]);
+        assert_eq!(e.key(), Some("slab.contrst"), "{e}");
+        let e = err_of(&slab_deck(&two.replace("contrast = 4", "contrast = 0.5")), &[]);
+        assert_eq!(e.key(), Some("slab[1].contrast"), "{e}");
+        let e = err_of(&slab_deck(&one.replace("edge = 0.02", "edge = 0.2")), &[]);
+        assert_eq!(e.key(), Some("slab.edge"), "{e}");
+        let e = err_of(&slab_deck(&two.replace("center = 0.75", "center = 0.4")), &[]);
+        assert_eq!(e.key(), Some("slab[1].center"), "{e}");
+        // The slab and explicit gas regions both define the density: a clear error.
+        let e = err_of(&format!("{SOD}{SLAB_BG}{one}"), &[]);
+        assert_eq!(e.key(), Some("init.regions"), "{e}");
+        let e = err_of(&slab_deck(&format!("{one}neutral_fraction = \"cie\"\n")), &[]);
+        assert_eq!(e.key(), Some("slab.neutral_fraction"), "{e}");
     }
 
     #[test]

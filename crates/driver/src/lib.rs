@@ -13,6 +13,8 @@ pub mod physics;
 pub mod restart;
 pub mod setup;
 pub mod simulation;
+pub mod slab;
+pub mod slab_series;
 pub mod snapshot;
 pub mod stage;
 pub mod units;

@@ -235,6 +235,7 @@ pub struct OutputWriter {
     written: Vec<PathBuf>,
     bar: indicatif::ProgressBar,
     t_end: f64,
+    slab: Option<crate::slab_series::SlabSeries>,
 }
 
 impl std::fmt::Debug for OutputWriter {
@@ -271,6 +272,7 @@ impl OutputWriter {
             written: Vec::new(),
             bar,
             t_end: sim.t_end(),
+            slab: crate::slab_series::SlabSeries::for_run(dir, sim)?,
         })
     }
 
@@ -315,6 +317,11 @@ impl OutputWriter {
         Ok(w)
     }
 
+    /// The slab series (`<name>_slab.csv`, `<name>_slab.h5`) of a deck with `[slab]`.
+    pub fn slab_series(&self) -> Option<&crate::slab_series::SlabSeries> {
+        self.slab.as_ref()
+    }
+
     /// Snapshot files written so far.
     pub fn written(&self) -> &[PathBuf] {
         &self.written
@@ -341,11 +348,18 @@ impl Observer for OutputWriter {
         let path = self.dir.join(format!("{}_{index:04}.h5", self.name));
         write_atomic(&path, &build_snapshot(sim, index))?;
         self.ledger.append(&sim.ledger())?;
+        if let Some(s) = self.slab.as_mut() {
+            s.record(sim);
+            s.flush()?;
+        }
         self.written.push(path);
         Ok(())
     }
 
     fn after_step(&mut self, sim: &Simulation) {
+        if let Some(s) = self.slab.as_mut() {
+            s.after_step(sim);
+        }
         if self.bar.is_hidden() {
             return;
         }

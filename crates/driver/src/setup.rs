@@ -124,6 +124,9 @@ pub fn initial_state(deck: &Deck, u: &Units, grid: &Grid) -> Result<State, Drive
         let mut w = regions.iter().rev().find(|(a, b, _)| x_cm >= *a && x_cm < *b).map(|r| r.2).or(bg).ok_or_else(|| {
             DriverError::Setup(format!("no region of init.regions covers the cell centred at x = {x_cm} cm and there is no init.background"))
         })?;
+        if let Some(b) = &bg {
+            crate::slab::overlay(deck, u, b, x_cm, &mut w);
+        }
         for (i, p) in deck.init.profiles.iter().enumerate() {
             let d = p.value(x_cm);
             match p.field {

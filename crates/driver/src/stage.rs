@@ -117,4 +117,11 @@ pub trait Stage: Send {
 
     /// Restores the state written by [`Stage::checkpoint`].
     fn restore(&mut self, data: &[OutputField]) -> Result<(), StageError>;
+
+    /// A per-cell array the stage exposes by name for diagnostics (storage cells including
+    /// ghosts, code units), e.g. the CR stage's `e_c` (CR energy density) and `heating_rate`
+    /// (CR → gas heating averaged over the last step, energy/(volume·time)). Default: none.
+    fn cell_array(&self, _name: &str) -> Option<&[f64]> {
+        None
+    }
 }

@@ -495,6 +495,10 @@ impl Stage for CosmicRayStage {
         out
     }
 
+    fn cell_array(&self, name: &str) -> Option<&[f64]> {
+        self.named_array(name)
+    }
+
     fn restore(&mut self, data: &[OutputField]) -> Result<(), StageError> {
         let n = self.cr.e_c.len();
         let bad = |what: String| StageError::Restore {
@@ -558,6 +562,16 @@ impl Stage for CosmicRayStage {
 }
 
 impl CosmicRayStage {
+    /// Per-cell arrays for diagnostics (storage cells, code units): `e_c` and
+    /// `heating_rate` (the solver's CR → gas heating averaged over the last call).
+    fn named_array(&self, name: &str) -> Option<&[f64]> {
+        match name {
+            "e_c" => self.cr.e_c.as_slice(),
+            "heating_rate" => self.solver.heating_rate().as_slice(),
+            _ => None,
+        }
+    }
+
     fn solver_grid(&self) -> sluice_mhd::Grid {
         *self.mhd.grid()
     }
