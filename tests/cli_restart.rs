@@ -30,6 +30,20 @@ fn data_bits(s: &Snapshot) -> Vec<(String, Vec<u64>)> {
 /// Runs `deck` to t_end in A, to t_mid in B, restarts B from its snapshot `mid_index` up to
 /// t_end and compares the snapshots after `mid_index` and the ledgers.
 fn check_restart(deck: &str, name: &str, set: &[&str], t_mid: &str, t_end: &str, last: usize) {
+    check_restart_into(deck, name, set, t_mid, t_end, last, false)
+}
+
+/// As [`check_restart`]; with `new_dir` the restart writes into a new folder `c` (ledger and
+/// slab series continued from the snapshot's folder).
+fn check_restart_into(
+    deck: &str,
+    name: &str,
+    set: &[&str],
+    t_mid: &str,
+    t_end: &str,
+    last: usize,
+    new_dir: bool,
+) {
     let tmp = tempfile::tempdir().unwrap();
     let a = tmp.path().join("a");
     let b = tmp.path().join("b");
@@ -52,14 +66,15 @@ fn check_restart(deck: &str, name: &str, set: &[&str], t_mid: &str, t_end: &str,
         !b.join(format!("{name}_{:04}.h5", mid_index + 1)).exists(),
         "B should stop at the middle snapshot"
     );
-    let o = sluice(&[
-        "run",
-        "--restart",
-        &snap_b.display().to_string(),
-        "--quiet",
-        "--set",
-        &end,
-    ]);
+    let c = tmp.path().join("c");
+    let c_s = c.display().to_string();
+    let snap_s = snap_b.display().to_string();
+    let mut args = vec!["run", "--restart", &snap_s, "--quiet", "--set", &end];
+    if new_dir {
+        args.extend(["--out", &c_s]);
+    }
+    let o = sluice(&args);
+    let b = if new_dir { c } else { b };
     assert!(o.status.success(), "restart failed: {}", text(&o.stderr));
     assert!(
         text(&o.stdout).contains("restarted from"),
@@ -90,6 +105,28 @@ fn check_restart(deck: &str, name: &str, set: &[&str], t_mid: &str, t_end: &str,
     let lb = std::fs::read_to_string(b.join("ledger.csv")).unwrap();
     assert_eq!(la.lines().count(), last + 2, "ledger rows");
     assert_eq!(la, lb, "ledger.csv after restart");
+    let slab = format!("{name}_slab.csv");
+    if a.join(&slab).exists() {
+        let sa = std::fs::read_to_string(a.join(&slab)).unwrap();
+        let sb = std::fs::read_to_string(b.join(&slab)).unwrap();
+        assert!(sa.lines().count() > 3, "slab series rows");
+        assert_eq!(sa, sb, "{slab} after restart");
+    }
+}
+
+#[test]
+fn slab_restart_into_a_new_folder_continues_ledger_and_slab_series() {
+    // Dense-slab bottleneck deck on 128 cells: 2 outputs of 50 Myr, restart at 50 Myr into a
+    // new folder; the slab diagnostics series is compared too.
+    check_restart_into(
+        &problem("bottleneck-slab.toml"),
+        "bottleneck-slab",
+        &["grid.cells=128"],
+        "1.5779e15",
+        "3.1558e15",
+        2,
+        true,
+    );
 }
 
 #[test]

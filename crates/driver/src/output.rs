@@ -280,13 +280,26 @@ impl OutputWriter {
     /// [`Simulation::from_snapshot`]): `<dir>/ledger.csv` keeps its rows with time ≤ the
     /// restart time and new rows are appended. When `<dir>` has no ledger yet, the rows are
     /// taken from `previous_ledger` (the ledger beside the snapshot), else a new ledger
-    /// starts with the row of the restart time. The cut file is written atomically.
+    /// starts with the row of the restart time. The cut file is written atomically. The slab
+    /// series continues through [`crate::slab_series::SlabSeries::resume`] (its CSV is first
+    /// copied from beside the snapshot when `<dir>` has none).
     pub fn resume(
         dir: &Path,
         sim: &Simulation,
         progress: bool,
         previous_ledger: Option<&Path>,
     ) -> Result<Self, DriverError> {
+        // A restart into a new folder continues the slab series beside the snapshot.
+        let slab_csv = format!("{}_slab.csv", sim.deck().run.name);
+        if let Some(prev) = previous_ledger.and_then(Path::parent) {
+            let (from, to) = (prev.join(&slab_csv), dir.join(&slab_csv));
+            if from.is_file() && !to.exists() && std::fs::create_dir_all(dir).is_ok() {
+                std::fs::copy(&from, &to).map_err(|e| DriverError::Io {
+                    path: to.display().to_string(),
+                    message: e.to_string(),
+                })?;
+            }
+        }
         let mut w = Self::new(dir, sim, progress)?;
         let target = dir.join("ledger.csv");
         let names: Vec<String> = sim.ledger().entries.into_iter().map(|e| e.name).collect();
