@@ -331,9 +331,9 @@ fn two_slabs_agree_with_the_steady_solution() {
     let steady = sluice_cosmic_rays::steady::bottleneck_from_flux(x, va, v, F_IN, GAMMA_C).unwrap();
     let n = x.len();
     let (mut e, mut norm) = (0.0, 0.0);
-    for i in 5..n - 5 {
-        e += (pc[i] - steady.pc[i]).abs();
-        norm += steady.pc[i];
+    for (a, b) in pc[5..n - 5].iter().zip(&steady.pc[5..n - 5]) {
+        e += (a - b).abs();
+        norm += b;
     }
     let l1 = e / norm;
     // A decoupled (flat) stretch exists between the two slabs in the steady solution.

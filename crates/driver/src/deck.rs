@@ -1387,18 +1387,30 @@ pressure = 0.1
         let two = "[[slab]]\ncenter = 0.25\nwidth = 0.1\nedge = 0.02\ncontrast = 10\n[[slab]]\ncenter = 0.75\nwidth = 0.1\nedge = 0.02\ncontrast = 4\nequilibrium = \"temperature\"\n";
         let d = parse_deck(&slab_deck(two), &[]).unwrap();
         assert_eq!(d.slab.as_ref().map(|s| s.0[1].contrast), Some(4.0));
-        let e = err_of(&slab_deck(&one.replace("contrast = 10", "contrst = 10")), &[]);
+        let e = err_of(
+            &slab_deck(&one.replace("contrast = 10", "contrst = 10")),
+            &[],
+        );
         assert_eq!(e.key(), Some("slab.contrst"), "{e}");
-        let e = err_of(&slab_deck(&two.replace("contrast = 4", "contrast = 0.5")), &[]);
+        let e = err_of(
+            &slab_deck(&two.replace("contrast = 4", "contrast = 0.5")),
+            &[],
+        );
         assert_eq!(e.key(), Some("slab[1].contrast"), "{e}");
         let e = err_of(&slab_deck(&one.replace("edge = 0.02", "edge = 0.2")), &[]);
         assert_eq!(e.key(), Some("slab.edge"), "{e}");
-        let e = err_of(&slab_deck(&two.replace("center = 0.75", "center = 0.4")), &[]);
+        let e = err_of(
+            &slab_deck(&two.replace("center = 0.75", "center = 0.4")),
+            &[],
+        );
         assert_eq!(e.key(), Some("slab[1].center"), "{e}");
         // The slab and explicit gas regions both define the density: a clear error.
         let e = err_of(&format!("{SOD}{SLAB_BG}{one}"), &[]);
         assert_eq!(e.key(), Some("init.regions"), "{e}");
-        let e = err_of(&slab_deck(&format!("{one}neutral_fraction = \"cie\"\n")), &[]);
+        let e = err_of(
+            &slab_deck(&format!("{one}neutral_fraction = \"cie\"\n")),
+            &[],
+        );
         assert_eq!(e.key(), Some("slab.neutral_fraction"), "{e}");
     }
 

@@ -307,7 +307,9 @@ impl OutputWriter {
         let source = if target.is_file() {
             Some(target.clone())
         } else {
-            previous_ledger.filter(|p| p.is_file()).map(Path::to_path_buf)
+            previous_ledger
+                .filter(|p| p.is_file())
+                .map(Path::to_path_buf)
         };
         match source {
             Some(src) => {

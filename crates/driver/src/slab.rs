@@ -309,7 +309,7 @@ pub fn validate(deck: &Deck) -> Result<(), DeckError> {
                 let by = s.magnetic_field_y.unwrap_or(bg.magnetic_field_y);
                 let bz = s.magnetic_field_z.unwrap_or(bg.magnetic_field_z);
                 let ps = p + b2(bg.magnetic_field_y, bg.magnetic_field_z) - b2(by, bz);
-                if !(ps > 0.0) {
+                if ps.is_nan() || ps <= 0.0 {
                     return Err(invalid(
                         format!("{k}.magnetic_field_y"),
                         by,
@@ -710,7 +710,7 @@ pub fn steady_profile(
         .into_iter()
         .find(|f| f.name == "alfven_speed")?
         .data;
-    if va.iter().any(|&v| !(v > 0.0)) {
+    if va.iter().any(|&v| v.is_nan() || v <= 0.0) {
         return None;
     }
     let g = gas.grid;
