@@ -396,6 +396,10 @@ pub const SCALARS: &[&str] = &[
     "cr_pressure_max[erg/cm^3]",
 ];
 
+/// Positions in [`SCALARS`] of the whole-number columns (`steps`, `floors_hit`), written
+/// without an exponent.
+const COUNT_COLUMNS: [usize; 2] = [1, 15];
+
 /// What each run writes besides its summary row.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum SnapshotMode {
@@ -461,7 +465,7 @@ pub fn scalars(sim: &Simulation) -> Vec<f64> {
                 .collect::<Vec<_>>()
         })
         .map(|n| g(&n))
-        .sum();
+        .fold(0.0, |a, b| a + b);
     let cr_energy = l.get("cr_cosmic_rays").unwrap_or(0.0);
     let e0 = sim.ledger_origin().0 * sim.units().energy_per_area();
     let residual = g("energy_residual");
@@ -477,11 +481,11 @@ pub fn scalars(sim: &Simulation) -> Vec<f64> {
         dmin = dmin.min(st.rho[j]);
         dmax = dmax.max(st.rho[j]);
     }
-    let mut pc_max = f64::NAN;
+    let mut pc_max: f64 = 0.0;
     for s in sim.stages() {
         for f in s.fields(st) {
             if f.name == "cr_pressure" {
-                pc_max = f.data.iter().fold(f64::NEG_INFINITY, |a, &b| a.max(b));
+                pc_max = f.data.iter().fold(pc_max, |a, &b| a.max(b));
             }
         }
     }
@@ -609,7 +613,13 @@ pub fn csv_text(plan: &SweepPlan, rows: &[RunRow]) -> String {
         f.extend(r.values.iter().map(|v| csv_field(v)));
         match &r.result {
             Ok(s) => {
-                f.extend(s.iter().map(|x| format!("{x:e}")));
+                f.extend(s.iter().enumerate().map(|(k, x)| {
+                    if COUNT_COLUMNS.contains(&k) {
+                        format!("{}", *x as u64)
+                    } else {
+                        format!("{x:e}")
+                    }
+                }));
                 f.push(String::new());
             }
             Err(m) => {
