@@ -291,6 +291,17 @@ fn range(values: impl Iterator<Item = f64>) -> (f64, f64) {
     (lo - pad, hi + pad)
 }
 
+/// The power of ten k that brings a linear axis range to order one (0 when it already is,
+/// i.e. when its largest magnitude lies in [1e-2, 1e4)).
+fn decade(lo: f64, hi: f64) -> i32 {
+    let m = lo.abs().max(hi.abs());
+    if !m.is_finite() || m == 0.0 || (1e-2..1e4).contains(&m) {
+        0
+    } else {
+        m.log10().floor() as i32
+    }
+}
+
 fn tick(v: f64, log: bool) -> String {
     let v = if log { 10f64.powf(v) } else { v };
     if v == 0.0 {
@@ -339,6 +350,16 @@ where
     };
     let (x0, x1) = range(xs().map(|v| tf(v, xlog)));
     let (y0, y1) = range(ys().map(|v| tf(v, ylog)));
+    // Linear axes far from unity are drawn in units of 10^k (named in the axis label): the
+    // tick placement works on numbers of order one, not on 1e-26 g/cm^3.
+    let (xk, yk) = (
+        if xlog { 0 } else { decade(x0, x1) },
+        if ylog { 0 } else { decade(y0, y1) },
+    );
+    let (xm, ym) = (10f64.powi(-xk), 10f64.powi(-yk));
+    let (x0, x1, y0, y1) = (x0 * xm, x1 * xm, y0 * ym, y1 * ym);
+    let tx = |v: f64| tf(v, xlog) * xm;
+    let ty = |v: f64| tf(v, ylog) * ym;
     let mut chart = ChartBuilder::on(area)
         .caption(&p.title, ("sans-serif", 18))
         .margin(12)
@@ -346,16 +367,17 @@ where
         .y_label_area_size(85)
         .build_cartesian_2d(x0..x1, y0..y1)
         .map_err(derr)?;
-    let x_desc = if xlog {
-        format!("{} (log)", p.x_label)
-    } else {
-        p.x_label.clone()
+    let desc = |label: &str, log: bool, k: i32| {
+        if log {
+            format!("{label} (log)")
+        } else if k != 0 {
+            format!("{label} (×1e{k})")
+        } else {
+            label.to_string()
+        }
     };
-    let y_desc = if ylog {
-        format!("{} (log)", p.y_label)
-    } else {
-        p.y_label.clone()
-    };
+    let x_desc = desc(&p.x_label, xlog, xk);
+    let y_desc = desc(&p.y_label, ylog, yk);
     chart
         .configure_mesh()
         .x_desc(x_desc)
@@ -371,9 +393,9 @@ where
         // Split at non-finite points so log axes and gaps break the line.
         let mut runs: Vec<Vec<(f64, f64)>> = vec![Vec::new()];
         for (&x, &y) in s.x.iter().zip(&s.y) {
-            let (tx, ty) = (tf(x, xlog), tf(y, ylog));
-            if tx.is_finite() && ty.is_finite() {
-                runs.last_mut().expect("one run").push((tx, ty));
+            let (px, py) = (tx(x), ty(y));
+            if px.is_finite() && py.is_finite() {
+                runs.last_mut().expect("one run").push((px, py));
             } else if !runs.last().expect("one run").is_empty() {
                 runs.push(Vec::new());
             }
