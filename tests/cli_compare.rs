@@ -369,9 +369,38 @@ fn overlay_plot_is_written_as_svg() {
     assert_eq!(o.status.code(), Some(0), "{}", text(&o.stderr));
     let s = std::fs::read_to_string(&svg).unwrap();
     assert!(s.starts_with("<svg") && s.trim_end().ends_with("</svg>"));
-    // Per field: reference, other and difference curves.
-    assert_eq!(s.matches("<polyline").count(), 6, "{s}");
-    assert!(s.contains(">density<") && s.contains(">pressure<"));
+    // Per field: reference and other overlaid, the difference below; units of the reference.
+    for label in [
+        "density: pass",
+        "density: other − reference",
+        "pressure: pass",
+        "pressure [erg/cm^3]",
+        "x [cm]",
+        "reference ",
+        " remap)",
+    ] {
+        assert!(s.contains(label), "SVG lacks `{label}`");
+    }
+    // The solid reference curve has one vertex per compared cell (64).
+    let solid = s
+        .split("<polyline")
+        .filter(|t| t.contains("stroke-width=\"2\""))
+        .map(|t| {
+            t.split("points=\"")
+                .nth(1)
+                .unwrap_or("")
+                .split('"')
+                .next()
+                .unwrap()
+                .split_whitespace()
+                .count()
+        })
+        .filter(|&n| n == 64)
+        .count();
+    assert!(
+        solid >= 4,
+        "reference and difference curves of both fields: {solid}"
+    );
     assert!(text(&o.stdout).contains("overlay plot:"));
 }
 

@@ -77,9 +77,9 @@ pub struct CompareArgs {
     /// Print the report as JSON instead of a table.
     #[arg(long)]
     pub json: bool,
-    /// Write an overlay plot (SVG) of reference and OTHER (remapped) per field, with the
-    /// difference in a lower panel.
-    #[arg(long, value_name = "FILE.svg")]
+    /// Write an overlay plot (SVG or PNG, by extension) of reference and OTHER (remapped) per
+    /// field, with the difference in a panel below.
+    #[arg(long, value_name = "FILE.svg|FILE.png")]
     pub plot: Option<PathBuf>,
 }
 
@@ -167,7 +167,17 @@ pub fn run(a: CompareArgs) -> Result<(), Failure> {
         .collect();
 
     if let Some(plot) = &a.plot {
-        super::compare_plot::write_overlay(plot, &reference.profile, &other.profile, &report)?;
+        let ref_units = units
+            .iter()
+            .map(|(k, u)| (k.clone(), u.reference.clone()))
+            .collect();
+        super::compare_plot::write_overlay(
+            plot,
+            &reference.profile,
+            &other.profile,
+            &report,
+            &ref_units,
+        )?;
     }
     if a.json {
         let mut v: serde_json::Value =
