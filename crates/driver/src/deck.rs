@@ -117,13 +117,6 @@ pub struct Deck {
     pub slab: Option<crate::slab::SlabSpec>,
 }
 
-/// Placeholder for a section whose physics is not built yet. It accepts any table so that the
-/// schema can grow, and [`Deck::validate`] rejects its presence with a clear message. A later
-/// stage replaces `Option<ReservedSection>` by its own strict section type.
-#[derive(Debug, Clone, PartialEq, Deserialize)]
-#[serde(transparent)]
-pub struct ReservedSection(pub toml::Table);
-
 /// `[run]`.
 #[derive(Debug, Clone, PartialEq, Deserialize)]
 #[serde(deny_unknown_fields)]
