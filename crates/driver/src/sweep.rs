@@ -239,16 +239,21 @@ pub struct SweepPlan {
     pub sweep_id: String,
 }
 
-/// 64-bit FNV-1a hash (Fowler, Noll & Vo; constants of the published FNV-1a, common practice).
-fn fnv1a(parts: &[&str]) -> u64 {
+/// 64-bit FNV-1a hash of a byte stream (Fowler, Noll & Vo; offset basis and prime of the
+/// 64-bit variant as in the IETF draft draft-eastlake-fnv, from memory; checked against its
+/// test vectors below).
+fn fnv1a_bytes(bytes: impl Iterator<Item = u8>) -> u64 {
     let mut h: u64 = 0xcbf2_9ce4_8422_2325;
-    for p in parts {
-        for b in p.bytes().chain([0u8]) {
-            h ^= u64::from(b);
-            h = h.wrapping_mul(0x0000_0100_0000_01b3);
-        }
+    for b in bytes {
+        h ^= u64::from(b);
+        h = h.wrapping_mul(0x0000_0100_0000_01b3);
     }
     h
+}
+
+/// FNV-1a of the parts, each followed by a NUL byte (so `["ab", "c"]` ≠ `["a", "bc"]`).
+fn fnv1a(parts: &[&str]) -> u64 {
+    fnv1a_bytes(parts.iter().flat_map(|p| p.bytes().chain([0u8])))
 }
 
 /// The deck-dependent columns of the final state (`name[unit]`, value, cgs).
@@ -816,6 +821,16 @@ pressure = 0.1
             let e = parse_vary(bad).unwrap_err().to_string();
             assert!(e.contains(bad), "{e}");
         }
+    }
+
+    /// FNV-1a 64 test vectors (draft-eastlake-fnv, from memory): "" → cbf29ce484222325,
+    /// "a" → af63dc4c8601ec8c, "foobar" → 85944171f73967e8.
+    #[test]
+    fn fingerprint_is_fnv1a_64() {
+        assert_eq!(fnv1a_bytes("".bytes()), 0xcbf2_9ce4_8422_2325);
+        assert_eq!(fnv1a_bytes("a".bytes()), 0xaf63_dc4c_8601_ec8c);
+        assert_eq!(fnv1a_bytes("foobar".bytes()), 0x8594_4171_f739_67e8);
+        assert_ne!(fnv1a(&["ab", "c"]), fnv1a(&["a", "bc"]));
     }
 
     #[test]
