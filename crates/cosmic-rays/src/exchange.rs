@@ -1,6 +1,23 @@
 //! Local (per-cell) CR–wave–gas exchange: implicit flux relaxation, exact logistic wave
 //! integration, exactly energy- and momentum-conserving bookkeeping (physics-detail §2.6 a–g).
 //!
+//! Realizability. Relaxing a flux F towards v_a h moves the momentum (F − v_a h)/c_r² to the
+//! waves and gas and costs the CRs the energy v_a (F − v_a h)/c_r² (streaming loss, energy
+//! v_a × momentum); over the whole relaxation the exact local solution of §2.6 b–f loses
+//! Δe_c = −v_a D_0/(c_r² − γ_c v_a²), D_0 = F − γ_c v_a e_c (strong-coupling limit, [derived]:
+//! dD/dt = −σ(c_r² − γ_c v_a²) D and de_c = (v_a/c_r²) dF). For a realizable state
+//! |F| ≤ c_r e_c (the energy flux of particles moving at most at c_r) that is at most
+//! v_a e_c/(c_r − γ_c v_a) < e_c whenever c_r > (1 + γ_c) v_a, so e_c stays positive. The
+//! explicit transport can leave a cell far outside that set next to an unresolved jump of
+//! e_c (a fixed boundary energy density thousands of times the interior, with the
+//! asymptotic-preserving e_c dissipation reduced to the streaming speed while F still gets the
+//! full c_r² ∂_x P_c kick): then no step size keeps e_c ≥ 0, and halving the substep only
+//! marched on at dt/2^30. [`exchange_cell`] therefore (i) brings such a cell back to
+//! |F| = c_r e_c before the exchange, handing the removed CR momentum (F − F')/c_r² to the gas
+//! and paying the gas kinetic-energy change from e_c (energy and the reduced momentum
+//! ρv + F/c_r² conserved exactly, counted in [`Transfer::flux_limited`]), and (ii) stops after
+//! [`ExchangeTolerances::max_substeps`] substeps with a [`Stall`] instead of looping.
+//!
 //! Waves here are labelled by x-direction: `er` moves at +v_a, `el` at −v_a. The solver maps
 //! (e_+, e_−) onto (er, el) with s = sign(B_x), which makes results independent of the sign of
 //! B_x (label symmetry, physics-detail §2.2).
@@ -39,6 +56,38 @@ pub struct Transfer {
     pub substeps: u32,
     /// Substeps accepted without meeting the tolerances.
     pub tol_failures: u32,
+    /// Substeps rejected (halved and retried).
+    pub rejected: u32,
+    /// 1 when the entry state was non-realizable (|F| > c_r e_c) and F was brought back to
+    /// c_r e_c (momentum to the gas, kinetic energy from the CRs, included in `work_on_gas`).
+    pub flux_limited: u32,
+}
+
+/// Why [`exchange_cell`] gave up on a cell.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum StallReason {
+    /// The CR energy density entering the exchange is negative or not finite (or F is not
+    /// finite): no substep can meet e_c ≥ 0.
+    BadEntry,
+    /// [`ExchangeTolerances::max_substeps`] substeps were used before the end of the call.
+    SubstepLimit,
+}
+
+/// A cell whose exchange could not be completed (returned instead of looping).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Stall {
+    /// Why.
+    pub reason: StallReason,
+    /// The cell as it entered the call (code units).
+    pub entry: Cell,
+    /// The cell reached when giving up.
+    pub reached: Cell,
+    /// Substeps tried (accepted + rejected).
+    pub substeps: u32,
+    /// Time of the call already integrated [code time].
+    pub done: f64,
+    /// Length of the call [code time].
+    pub dt: f64,
 }
 
 /// Constant per-cell data of the exchange.
@@ -226,10 +275,36 @@ pub fn add_transfer(a: &mut Transfer, b: &Transfer) {
     a.floor += b.floor;
     a.substeps += b.substeps;
     a.tol_failures += b.tol_failures;
+    a.rejected += b.rejected;
+    a.flux_limited += b.flux_limited;
+}
+
+/// Brings a non-realizable cell (|F| > c_r e_c) back to |F| = c_r e_c conservatively: the
+/// removed CR momentum (F − F')/c_r² goes to the gas (ρv + F/c_r² unchanged) and the gas
+/// kinetic-energy change ΔK is paid by the CRs (e_c + E unchanged). Returns ΔK, or `None` when
+/// the cell was realizable (nothing changed). Needs e_c ≥ 0.
+#[inline]
+pub fn limit_flux(ctx: &CellCtx, c: &mut Cell) -> Option<f64> {
+    let fmax = ctx.cr2.sqrt() * c.ec;
+    if c.f.abs() <= fmax {
+        return None;
+    }
+    let f1 = fmax.copysign(c.f);
+    let m1 = c.m + (c.f - f1) / ctx.cr2;
+    let dk = (m1 - c.m) * (m1 + c.m) / (2.0 * ctx.rho);
+    c.f = f1;
+    c.m = m1;
+    c.ec -= dk;
+    c.en += dk;
+    Some(dk)
 }
 
 /// Full exchange of one cell over `dt` with adaptive substeps (halving on tolerance failure,
 /// doubling after success). `rates(e, r_not_l)` supplies the damping coefficients.
+///
+/// Work is bounded: at most [`ExchangeTolerances::max_substeps`] substeps (accepted and
+/// rejected) per call, else a [`Stall`]. A negative or non-finite entry e_c is a [`Stall`] at
+/// once. A non-realizable entry flux is limited first (see the module docs).
 #[inline]
 pub fn exchange_cell(
     ctx: &CellCtx,
@@ -237,7 +312,19 @@ pub fn exchange_cell(
     dt: f64,
     tol: &ExchangeTolerances,
     mut rates: impl FnMut(f64, bool) -> (f64, f64),
-) -> (Cell, Transfer) {
+) -> Result<(Cell, Transfer), Stall> {
+    let entry = c;
+    let stall = |reason, reached, substeps, done| Stall {
+        reason,
+        entry,
+        reached,
+        substeps,
+        done,
+        dt,
+    };
+    if !(c.ec >= 0.0 && c.ec.is_finite() && c.f.is_finite()) {
+        return Err(stall(StallReason::BadEntry, c, 0, 0.0));
+    }
     let mut total = Transfer::default();
     // Entry floor (transport may have left a wave energy below it).
     if matches!(ctx.model, TransportModel::SelfConfined) {
@@ -253,10 +340,25 @@ pub fn exchange_cell(
         c.en -= fl;
         total.floor += fl;
     }
+    // Realizability (only the models whose exchange drains e_c through F).
+    if !matches!(ctx.model, TransportModel::FixedKappa { .. }) {
+        if let Some(dk) = limit_flux(ctx, &mut c) {
+            total.work_on_gas += dk;
+            total.flux_limited = 1;
+            if c.ec.is_nan() || c.ec < 0.0 {
+                return Err(stall(StallReason::BadEntry, c, 0, 0.0));
+            }
+        }
+    }
     let mut remaining = dt;
     let mut h = dt;
     let mut halvings = 0u32;
+    let mut tried = 0u32;
     while remaining > 0.0 {
+        if tried >= tol.max_substeps {
+            return Err(stall(StallReason::SubstepLimit, c, tried, dt - remaining));
+        }
+        tried += 1;
         let sub = h.min(remaining);
         let dr = rates(c.er, true);
         let dl = rates(c.el, false);
@@ -277,11 +379,12 @@ pub fn exchange_cell(
                 halvings -= 1;
             }
         } else {
+            total.rejected += 1;
             h = 0.5 * sub;
             halvings += 1;
         }
     }
-    (c, total)
+    Ok((c, total))
 }
 
 #[cfg(test)]

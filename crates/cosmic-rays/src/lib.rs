@@ -93,6 +93,22 @@ pub enum CrError {
         /// Largest allowed.
         max_dt: f64,
     },
+    /// The local CR–wave–gas exchange of a cell could not be completed: the entry state has
+    /// e_c < 0 (or is not finite), or `tolerances.max_substeps` substeps were used up. The
+    /// message gives the entry values (code units) so the driver can report them with the time.
+    #[error(
+        "CR exchange stopped in interior cell {cell} at x = {x} (code length): {reason}; {values}"
+    )]
+    ExchangeStalled {
+        /// Interior cell.
+        cell: usize,
+        /// Cell centre [code length].
+        x: f64,
+        /// What went wrong.
+        reason: String,
+        /// Entry and reached values of the cell, v_a, c_r, substeps and time covered (code units).
+        values: String,
+    },
     /// Non-finite state produced.
     #[error("unphysical CR state in cell {cell} at x = {x}: {what}")]
     Unphysical {

@@ -93,9 +93,14 @@ pub struct ExchangeTolerances {
     pub tol_c: f64,
     /// Largest accepted |Δ ln e_±| per substep (default 0.5).
     pub tol_a: f64,
-    /// Largest number of halvings of a substep (default 30); beyond it the substep is accepted
-    /// and counted as a tolerance failure.
+    /// Largest number of halvings of a substep (default 30, at most 40 so that the smallest
+    /// substep still advances the time in f64); beyond it the substep is accepted and counted
+    /// as a tolerance failure.
     pub max_halvings: u32,
+    /// Hard limit on the substeps (accepted and rejected) of one cell in one exchange call
+    /// (default 100000). Reaching it stops the run with [`crate::CrError::ExchangeStalled`]
+    /// naming the cell and its values instead of looping on.
+    pub max_substeps: u32,
 }
 
 impl Default for ExchangeTolerances {
@@ -104,6 +109,7 @@ impl Default for ExchangeTolerances {
             tol_c: 0.05,
             tol_a: 0.5,
             max_halvings: 30,
+            max_substeps: 100_000,
         }
     }
 }
@@ -225,8 +231,11 @@ impl CrParams {
         if !pos(t.tol_a) {
             return bad("tol_a", t.tol_a, "a finite number > 0");
         }
-        if t.max_halvings > 60 {
-            return bad("max_halvings", t.max_halvings, "0..=60");
+        if t.max_halvings > 40 {
+            return bad("max_halvings", t.max_halvings, "0..=40");
+        }
+        if t.max_substeps == 0 {
+            return bad("max_substeps", t.max_substeps, "at least 1");
         }
         match self.model {
             TransportModel::SelfConfined => {}

@@ -2,7 +2,7 @@
 //! exchange stage.
 
 use crate::damping::{WaveDamping, WaveDirection};
-use crate::exchange::{add_transfer, exchange_cell, Cell, CellCtx, Transfer};
+use crate::exchange::{add_transfer, exchange_cell, Cell, CellCtx, StallReason, Transfer};
 use crate::params::{AlfvenDensity, Coupling, CrBoundary, CrParams, Limiter, TransportModel};
 use crate::state::CrState;
 use crate::CrError;
@@ -19,6 +19,11 @@ pub struct CrReport {
     pub exchange_substeps: u64,
     /// Exchange substeps accepted without meeting the tolerances.
     pub tolerance_failures: u64,
+    /// Exchange substeps rejected (halved and retried), summed over cells and stages.
+    pub exchange_rejected: u64,
+    /// Cell exchanges that started from a non-realizable flux |F| > c_r e_c and limited it
+    /// conservatively (momentum to the gas, kinetic energy from the CRs; `exchange` docs).
+    pub flux_limited: u64,
     /// CR energy transferred to waves (streaming-instability growth; in the streaming model
     /// directly to heat).
     pub cr_to_waves: f64,
@@ -48,6 +53,8 @@ impl CrReport {
         self.floor_energy += w * t.floor;
         self.exchange_substeps += t.substeps as u64;
         self.tolerance_failures += t.tol_failures as u64;
+        self.exchange_rejected += t.rejected as u64;
+        self.flux_limited += t.flux_limited as u64;
     }
 }
 
@@ -456,6 +463,8 @@ impl CrSolver {
         let cr2 = p.c_r * p.c_r;
         let gc = p.gamma_c;
         let dx = g.dx();
+        let fixed_left = matches!(p.boundaries.left, CrBoundary::FixedEnergyDensity(_));
+        let fixed_right = matches!(p.boundaries.right, CrBoundary::FixedEnergyDensity(_));
         let s = &mut self.scratch;
         let [ref s_ec, ref s_f, ref s_er, ref s_el] = s.slope;
         let [ref mut f_ec, ref mut f_f, ref mut f_er, ref mut f_el] = s.fl;
@@ -470,7 +479,14 @@ impl CrSolver {
             let up = vf >= 0.0;
             // Dissipation speed of the e_c flux: HLL c_w, reduced in the optically thick limit
             // (asymptotic preserving) but never below the CR transport speed |F|/h at the face.
-            let ae = if ap {
+            // Not reduced on a fixed-energy-density boundary face: there the ghost F is only a
+            // copy of the interior one, so a reduced dissipation would let the interior flux
+            // alone (≈ 0 while the interior is still empty) set the inflow from the reservoir,
+            // and the CR pressure jump at the boundary would persist and heat the first cell;
+            // with c_w the face is the plain HLL flux between reservoir and interior (in a
+            // steady state with e_c = e_boundary in the first cell the term vanishes).
+            let reservoir = (k == 0 && fixed_left) || (k == g.n && fixed_right);
+            let ae = if ap && !reservoir {
                 let sig = 0.5 * (s.sig[jl] + s.sig[jr]);
                 let tau = 3.0 * cw * dx * sig; // = c_w Δx / κ_eff
                 let t2 = tau * tau;
@@ -633,7 +649,37 @@ impl CrSolver {
             let (c1, tr) = exchange_cell(&ctx, c0, dt, &p.tolerances, |e, r| {
                 let (a, b) = damping.rates(j, gref, e, if r { dir_r } else { dir_l });
                 (a.max(0.0), b.max(0.0))
-            });
+            })
+            .map_err(|st| CrError::ExchangeStalled {
+                cell: j - g.ng,
+                x: g.x_center(j),
+                reason: match st.reason {
+                    StallReason::BadEntry => {
+                        "the CR energy density entering the exchange is negative or not finite (transport undershoot)".into()
+                    }
+                    StallReason::SubstepLimit => format!(
+                        "the substep limit tolerances.max_substeps = {} was reached",
+                        p.tolerances.max_substeps
+                    ),
+                },
+                values: format!(
+                    "entered with e_c = {:e}, F = {:e}, e_R = {:e}, e_L = {:e}, gas momentum {:e}, gas energy {:e}; reached e_c = {:e}, F = {:e} after {} substeps covering {:e} of dt = {:e}; v_a = {:e}, c_r = {:e}, rho = {:e} (code units)",
+                    st.entry.ec,
+                    st.entry.f,
+                    st.entry.er,
+                    st.entry.el,
+                    st.entry.m,
+                    st.entry.en,
+                    st.reached.ec,
+                    st.reached.f,
+                    st.substeps,
+                    st.done,
+                    st.dt,
+                    ctx.va,
+                    p.c_r,
+                    ctx.rho
+                ),
+            })?;
             if !(c1.ec.is_finite() && c1.f.is_finite() && c1.en.is_finite() && c1.m.is_finite()) {
                 return Err(CrError::Unphysical {
                     cell: j - g.ng,
