@@ -38,6 +38,15 @@ pub struct CrDiagnostics {
     pub cr_force: Vec<f64>,
     /// −∂_x P_c (to compare with the force; equal in the quasi-steady limit).
     pub minus_grad_pc: Vec<f64>,
+    /// Streaming part of the model's quasi-steady flux, F_st = u_st h [energy/(area·time)]:
+    /// u_st = v_a (e_R − e_L)/(e_R + e_L) (self-confined, x-labelled waves), −v_a sign(∂_x P_c)
+    /// (streaming model; 0 where ∂_x P_c = 0), 0 (fixed κ).
+    pub streaming_flux: Vec<f64>,
+    /// Diffusive part of the same flux, F_diff = −3 κ_d ∂_x P_c (= −κ_d ∂_x e_c for γ_c = 4/3)
+    /// with κ_d = 1/(3(σ_+ + σ_−)) (self-confined, fixed κ) or the coupled κ (streaming model).
+    pub diffusive_flux: Vec<f64>,
+    /// |F_st| / (|F_st| + |F_diff|) (dimensionless, NaN where both vanish).
+    pub streaming_fraction: Vec<f64>,
 }
 
 impl CrSolver {
@@ -123,6 +132,27 @@ impl CrSolver {
             d.streaming_heating.push(-ua * gpc);
             d.cr_force.push(sr * (f - va * h) + sl * (f + va * h));
             d.minus_grad_pc.push(-gpc);
+            // Quasi-steady (C2) flux F = u_st h − 3 κ_d ∂_x P_c (physics-detail §2.4).
+            let (u_st, kappa_d) = match p.model {
+                TransportModel::SelfConfined => (
+                    if wsum > 0.0 {
+                        va * (er - el) / wsum
+                    } else {
+                        0.0
+                    },
+                    1.0 / (3.0 * (sr + sl)),
+                ),
+                TransportModel::FixedKappa { kappa } => (0.0, kappa),
+                TransportModel::Streaming { kappa, .. } => {
+                    (if gpc == 0.0 { 0.0 } else { -va * gpc.signum() }, kappa)
+                }
+            };
+            let (fs, fd) = (u_st * h, -3.0 * kappa_d * gpc);
+            let tot = fs.abs() + fd.abs();
+            d.streaming_flux.push(fs);
+            d.diffusive_flux.push(fd);
+            d.streaming_fraction
+                .push(if tot > 0.0 { fs.abs() / tot } else { f64::NAN });
         }
         d
     }

@@ -458,6 +458,18 @@ impl Stage for CosmicRayStage {
                 "erg/cm^3/s",
             ),
             f("cr_force", sc(&d.cr_force, pu / u.length), "dyn/cm^3"),
+            f(
+                "cr_streaming_flux",
+                sc(&d.streaming_flux, pu * vu),
+                "erg/cm^2/s",
+            ),
+            f(
+                "cr_diffusive_flux",
+                sc(&d.diffusive_flux, pu * vu),
+                "erg/cm^2/s",
+            ),
+            f("cr_streaming_fraction", d.streaming_fraction.clone(), "1"),
+            f("cr_regime", regime_map(&d.streaming_fraction), "1"),
         ];
         out
     }
@@ -562,11 +574,13 @@ impl Stage for CosmicRayStage {
 }
 
 impl CosmicRayStage {
-    /// Per-cell arrays for diagnostics (storage cells, code units): `e_c` and
-    /// `heating_rate` (the solver's CR → gas heating averaged over the last call).
+    /// Per-cell arrays for diagnostics (storage cells, code units): `e_c`, `f` (the comoving
+    /// CR flux F) and `heating_rate` (the solver's CR → gas heating averaged over the last
+    /// call).
     fn named_array(&self, name: &str) -> Option<&[f64]> {
         match name {
             "e_c" => self.cr.e_c.as_slice(),
+            "f" => self.cr.f.as_slice(),
             "heating_rate" => self.solver.heating_rate().as_slice(),
             _ => None,
         }
@@ -579,4 +593,22 @@ impl CosmicRayStage {
     fn gamma_c(&self) -> f64 {
         self.solver.params().gamma_c
     }
+}
+
+/// Regime map from the streaming fraction φ (docs/output-format.md): 2 = streaming-dominated
+/// (φ ≥ 1/2), 1 = diffusion-dominated (φ < 1/2), 0 = no quasi-steady CR flux (φ undefined:
+/// flat e_c and no net streaming velocity). Stored as floats (snapshot datasets are f64).
+pub fn regime_map(fraction: &[f64]) -> Vec<f64> {
+    fraction
+        .iter()
+        .map(|&phi| {
+            if phi.is_nan() {
+                0.0
+            } else if phi >= 0.5 {
+                2.0
+            } else {
+                1.0
+            }
+        })
+        .collect()
 }
