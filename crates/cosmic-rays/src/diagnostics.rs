@@ -42,8 +42,9 @@ pub struct CrDiagnostics {
     /// u_st = v_a (e_R − e_L)/(e_R + e_L) (self-confined, x-labelled waves), −v_a sign(∂_x P_c)
     /// (streaming model; 0 where ∂_x P_c = 0), 0 (fixed κ).
     pub streaming_flux: Vec<f64>,
-    /// Diffusive part of the same flux, F_diff = −3 κ_d ∂_x P_c (= −κ_d ∂_x e_c for γ_c = 4/3)
-    /// with κ_d = 1/(3(σ_+ + σ_−)) (self-confined, fixed κ) or the coupled κ (streaming model).
+    /// Diffusive part of the same flux, F_d = −3 κ_d ∂_x P_c (= −κ_d ∂_x e_c for γ_c = 4/3)
+    /// with κ_d = 1/(3(σ_+ + σ_−)) (self-confined, fixed κ) or the coupled κ (streaming model),
+    /// limited at the free-streaming flux: F_diff = F_d/(1 + |F_d|/(c_r e_c)).
     pub diffusive_flux: Vec<f64>,
     /// |F_st| / (|F_st| + |F_diff|) (dimensionless, NaN where both vanish).
     pub streaming_fraction: Vec<f64>,
@@ -147,7 +148,17 @@ impl CrSolver {
                     (if gpc == 0.0 { 0.0 } else { -va * gpc.signum() }, kappa)
                 }
             };
-            let (fs, fd) = (u_st * h, -3.0 * kappa_d * gpc);
+            // The diffusive part is flux-limited at the free-streaming flux c_r e_c
+            // (harmonic limiter, common practice): where κ_d is huge (waves at the floor) the
+            // quasi-steady relation would give an unbounded −3 κ_d ∂_x P_c.
+            let fd_raw = -3.0 * kappa_d * gpc;
+            let f_free = p.c_r * cr.e_c[j];
+            let fd = if f_free > 0.0 && fd_raw.is_finite() {
+                fd_raw / (1.0 + fd_raw.abs() / f_free)
+            } else {
+                0.0
+            };
+            let fs = u_st * h;
             let tot = fs.abs() + fd.abs();
             d.streaming_flux.push(fs);
             d.diffusive_flux.push(fd);
