@@ -17,6 +17,7 @@ pub mod slab;
 pub mod slab_series;
 pub mod snapshot;
 pub mod stage;
+pub mod study;
 pub mod sweep;
 pub mod units;
 
