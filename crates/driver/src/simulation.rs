@@ -2,7 +2,7 @@
 
 use crate::deck::{parse_deck, Deck};
 use crate::setup;
-use crate::stage::{Stage, StageReport};
+use crate::stage::{Stage, StageError, StageReport};
 use crate::units::Units;
 use crate::DriverError;
 use sluice_mhd::{Eos, MhdSolver, State, StepReport};
@@ -407,17 +407,23 @@ impl Simulation {
         let start = Instant::now();
         let half = 0.5 * dt;
         for i in 0..self.stages.len() {
-            let rep = self.stages[i].source(&mut self.state, half)?;
+            let rep = self.stages[i]
+                .source(&mut self.state, half)
+                .map_err(|e| at_time(e, self.time_seconds()))?;
             self.record_stage(i, &rep);
         }
         let rep = self.solver.step(&mut self.state, dt)?;
         self.record_mhd(&rep);
         for i in 0..self.stages.len() {
-            let rep = self.stages[i].transport(&mut self.state, dt)?;
+            let rep = self.stages[i]
+                .transport(&mut self.state, dt)
+                .map_err(|e| at_time(e, self.time_seconds()))?;
             self.record_stage(i, &rep);
         }
         for i in (0..self.stages.len()).rev() {
-            let rep = self.stages[i].source(&mut self.state, half)?;
+            let rep = self.stages[i]
+                .source(&mut self.state, half)
+                .map_err(|e| at_time(e, self.time_seconds()))?;
             self.record_stage(i, &rep);
         }
         self.time += dt;
@@ -608,5 +614,22 @@ impl Simulation {
             step: c.steps,
             entries,
         }
+    }
+}
+
+/// Adds the simulation time of the failing step (the step's start, s) to a stage error, so the
+/// run reports the cell, its values (from the stage) and the time together.
+fn at_time(e: StageError, time: f64) -> StageError {
+    match e {
+        StageError::Unphysical { stage, cell, what } => StageError::Unphysical {
+            stage,
+            cell,
+            what: format!("{what} (step starting at t = {time:e} s)"),
+        },
+        StageError::Failed { stage, what } => StageError::Failed {
+            stage,
+            what: format!("{what} (step starting at t = {time:e} s)"),
+        },
+        other => other,
     }
 }

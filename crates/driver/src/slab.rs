@@ -907,18 +907,25 @@ pub fn check_lines(sim: &Simulation) -> Vec<String> {
             p.heating_per_area.abs(),
             p.force_per_area
         ));
-        if let Some((_, CrSource::Flux(f))) = cr_source(deck) {
-            // Filling time of the upstream plateau from nothing: its energy over the inflow.
-            let l_up =
-                p.x.iter()
-                    .zip(&p.coupled)
-                    .find(|(_, c)| **c)
-                    .map_or(0.0, |(x, _)| (x - p.x[up]).abs());
-            let e_plateau = p.pc[up] / (gamma_c - 1.0);
-            lines.push(format!(
+        // Filling time of the upstream plateau from nothing: its energy over the inflow (the
+        // injected flux, or for a fixed boundary energy density the flux the bottleneck lets
+        // through, which the reservoir supplies once the plateau is in place).
+        let l_up =
+            p.x.iter()
+                .zip(&p.coupled)
+                .find(|(_, c)| **c)
+                .map_or(0.0, |(x, _)| (x - p.x[up]).abs());
+        let e_plateau = p.pc[up] / (gamma_c - 1.0);
+        match cr_source(deck) {
+            Some((_, CrSource::Flux(f))) => lines.push(format!(
                 "plateau filling time     e_c,plateau L_upstream / F_in = {:.6e} s (L_upstream = {l_up:.6e} cm)",
                 e_plateau * l_up / f
-            ));
+            )),
+            Some((_, CrSource::EnergyDensity(e))) => lines.push(format!(
+                "plateau filling time     e_c,plateau L_upstream / F_transmitted = {:.6e} s (L_upstream = {l_up:.6e} cm; source: fixed e_c = {e:.6e} erg/cm^3 at the boundary, P_c,plateau = (gamma_c-1) e_c)",
+                e_plateau * l_up / p.flux[up].abs()
+            )),
+            None => {}
         }
     } else if cr {
         lines.push("bottleneck plateau       no prediction: needs a CR source (cosmic_rays.left/right = \"injected_flux\" or \"fixed_energy_density\" > 0) and streaming (not fixed_kappa)".into());
