@@ -7,10 +7,8 @@
 
 mod common;
 
-use common::{sluice, text};
+use common::{sluice, text, ROOT};
 use std::path::{Path, PathBuf};
-
-const ROOT: &str = env!("CARGO_MANIFEST_DIR");
 
 fn column(header: &str, row: &str, name: &str) -> f64 {
     let i = header

@@ -187,6 +187,87 @@ fn streaming_front_excess_shrinks_with_resolution() {
 }
 
 #[test]
+fn weak_and_strong_damping_drift_at_the_growth_damping_balance() {
+    // Self-confined CRs with constant linear wave damping Γ_0: where the streaming
+    // instability balances the damping, the CRs drift at
+    //   v_st = v_a + f_E Γ_0 c² e_B / (α_ν Ω v_a h)
+    // (Wiener, Zweibel & Oh 2013, ApJ 767, 87; physics-detail §4.1, here with f_E = 2),
+    // independent of the gradient. Weak damping (0.01 Γ*) must stream close to v_a, strong
+    // damping (0.1 Γ*, Γ* the rate of a drift excess v_a at the initial peak) must drift
+    // markedly faster, and both must sit on the relation on the confined pulse flanks.
+    let dir = tempfile::tempdir().unwrap();
+    let doc = study(
+        dir.path(),
+        "self-confined-weak,self-confined-strong",
+        // Window 0.25–0.75 t_end: later, the CRs that escaped the strongly damped pulse
+        // fill the periodic box (edge excess > 50% of the peak) and single outputs of the
+        // strong variant leave the relation (measured up to 17% at 0.85 t_end).
+        &[
+            "--set",
+            "run.output_interval=3.15e13",
+            "--fit-window",
+            "0.25,0.75",
+        ],
+    );
+    let weak = run(&doc, "self-confined-weak");
+    let strong = run(&doc, "self-confined-strong");
+    let f = |r: &serde_json::Value, k: &str| {
+        r[k].as_f64()
+            .unwrap_or_else(|| panic!("{}: `{k}` missing or null", r["name"]))
+    };
+    for r in [weak, strong] {
+        // 10 outputs in the window.
+        assert!(r["flank_outputs"].as_u64().unwrap() >= 8, "{r}");
+        // Not set by the reduced speed of light: |F| well below c_r e_c on the flanks.
+        assert!(f(r, "flank_max_free_streaming") < 0.3, "{r}");
+        // Measured median 1.012 (weak) and 1.000 (strong), worst single output 1.5% and
+        // 0.8% (explicit c_r = 1.5e7 cm/s). Bounds 3% and 6%.
+        assert!((f(r, "flank_wzo13_ratio") - 1.0).abs() < 0.03, "{r}");
+        assert!(f(r, "flank_wzo13_worst_deviation") < 0.06, "{r}");
+    }
+    // Weak damping streams: flank drift within 20% of v_a (measured 1.09), front at v_a
+    // within 15% (measured 1.11, the smeared-edge excess of the streaming variant).
+    assert!(f(weak, "flank_v_st_over_alfven") < 1.2, "{weak}");
+    assert!(
+        (f(weak, "front_speed_over_alfven") - 1.0).abs() < 0.15,
+        "{weak}"
+    );
+    // Strong damping drifts faster than v_a (measured 1.91 v_a on the flanks) and carries the
+    // pulse faster (energy-weighted speed measured 1.90× the weak one).
+    assert!(f(strong, "flank_v_st_over_alfven") > 1.6, "{strong}");
+    assert!(
+        f(strong, "v_eff_cm_s") > 1.5 * f(weak, "v_eff_cm_s"),
+        "{strong}"
+    );
+
+    // At 10 Γ* the wave growth rate of the streaming instability is at most v_a σ̂ c_r e_c
+    // (free-streaming flux; physics-detail §2.6), with the deck's c_r ≈ 1.0e7 cm/s only 1.2×
+    // the damping rate 2Γ_0 at the initial peak and below it once the peak has dropped by a
+    // fifth: the waves stay at the floor, the CRs decouple, and the study must say so
+    // instead of reporting a drift.
+    let gamma_star = f(&doc, "reference_damping_rate_s");
+    let rate = format!("{:e}", 10.0 * gamma_star);
+    let deck = problem("cr-pulse-study.toml");
+    let out = dir.path().join("decoupled").display().to_string();
+    let o = sluice(&[
+        "study",
+        deck.as_str(),
+        "--variants",
+        "self-confined-strong",
+        "--strong-damping",
+        rate.as_str(),
+        "--out",
+        out.as_str(),
+    ]);
+    assert!(o.status.success(), "{}", text(&o.stderr));
+    let err = text(&o.stderr);
+    assert!(
+        err.contains("variant `self-confined-strong`: no confined flank cells"),
+        "{err}"
+    );
+}
+
+#[test]
 fn bad_input_names_the_flag_and_what_is_allowed() {
     let deck = problem("cr-pulse-study.toml");
     let cases: [(&[&str], &str); 5] = [

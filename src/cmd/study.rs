@@ -11,8 +11,8 @@ use crate::Failure;
 use rayon::prelude::*;
 use sluice_driver::output::OutputWriter;
 use sluice_driver::study::{
-    fit_pulse, mean_alfven_speed, reference_damping_rate, strip_transport, PulseFit, PulseObserver,
-    PulseSample, Variant,
+    fit_pulse, mean_alfven_speed, reference_damping_rate, strip_transport, FlankDrift, PulseFit,
+    PulseObserver, PulseSample, Variant,
 };
 use sluice_driver::Simulation;
 use std::path::{Path, PathBuf};
@@ -56,7 +56,8 @@ pub struct StudyArgs {
     /// rate at which the linear-damping drift excess equals v_a at the pulse peak).
     #[arg(long, value_name = "PER_S")]
     pub weak_damping: Option<f64>,
-    /// Constant wave damping rate Γ_0 of `self-confined-strong`, s⁻¹ (default 10 Γ*).
+    /// Constant wave damping rate Γ_0 of `self-confined-strong`, s⁻¹ (default 0.1 Γ*: the
+    /// flank drift then stays well below the free-streaming bound of the default c_r).
     #[arg(long, value_name = "PER_S")]
     pub strong_damping: Option<f64>,
     /// Initial forward and backward wave energies of the self-confined variants, as a
@@ -186,7 +187,7 @@ fn built_in(name: &str, a: &StudyArgs, r: &Reference) -> Result<Variant, Failure
     let kappa = a.kappa.unwrap_or(0.5 * r.v_a * r.v_a * r.t_end);
     let ks = a.streaming_kappa.unwrap_or(0.01 * kappa);
     let weak = a.weak_damping.unwrap_or(0.01 * r.gamma_star);
-    let strong = a.strong_damping.unwrap_or(10.0 * r.gamma_star);
+    let strong = a.strong_damping.unwrap_or(0.1 * r.gamma_star);
     let w = a.wave_energy;
     let sc = |rate: f64| {
         vec![
@@ -225,7 +226,11 @@ struct Outcome {
     variant: Variant,
     samples: Vec<PulseSample>,
     fractions: Vec<(f64, f64)>,
+    drifts: Vec<FlankDrift>,
     fit: PulseFit,
+    flank: FlankSummary,
+    /// The variant runs the self-confined model.
+    self_confined: bool,
     steps: u64,
     wall: f64,
 }
@@ -246,6 +251,10 @@ fn run_variant(
         Some(d) => Some(OutputWriter::new(&d, &sim, false).map_err(|e| ctx(&e))?),
         None => None,
     };
+    let self_confined =
+        sim.deck().cosmic_rays.as_ref().is_some_and(|c| {
+            c.model == sluice_driver::physics::sections::CrModelChoice::SelfConfined
+        });
     let mut obs = PulseObserver::new(r.background, writer);
     let start = Instant::now();
     let result = sim.run(&mut obs);
@@ -255,14 +264,70 @@ fn run_variant(
     let summary = result.map_err(|e| ctx(&e))?;
     let wall = start.elapsed().as_secs_f64();
     let fit = fit_pulse(&obs.samples, window.0 * r.t_end, window.1 * r.t_end);
+    let flank = summarise_flanks(&obs.drifts, window.0 * r.t_end, window.1 * r.t_end);
     Ok(Outcome {
         variant: v.clone(),
         samples: obs.samples,
         fractions: obs.fractions,
+        drifts: obs.drifts,
         fit,
+        flank,
+        self_confined,
         steps: summary.steps,
         wall,
     })
+}
+
+/// Flank drift over the output times t > 0 in the fit window.
+#[derive(Default)]
+struct FlankSummary {
+    /// Median of the per-output flank medians of v_st/v_a.
+    v_st_over_v_a: Option<f64>,
+    /// Median of the per-output WZO13 ratios.
+    wzo_ratio: Option<f64>,
+    /// Largest |ratio − 1| over those outputs.
+    wzo_worst: Option<f64>,
+    /// Largest |F|/(c_r e_c) on the flanks over those outputs.
+    free_streaming: Option<f64>,
+    /// Outputs used.
+    outputs: usize,
+}
+
+fn median(mut v: Vec<f64>) -> Option<f64> {
+    v.retain(|x| x.is_finite());
+    if v.is_empty() {
+        return None;
+    }
+    v.sort_by(f64::total_cmp);
+    let n = v.len();
+    Some(if n % 2 == 1 {
+        v[n / 2]
+    } else {
+        0.5 * (v[n / 2 - 1] + v[n / 2])
+    })
+}
+
+fn summarise_flanks(drifts: &[FlankDrift], lo: f64, hi: f64) -> FlankSummary {
+    let win: Vec<&FlankDrift> = drifts
+        .iter()
+        .filter(|d| d.time > 0.0 && d.time >= lo * (1.0 - 1e-12) && d.time <= hi * (1.0 + 1e-12))
+        .collect();
+    let ratios: Vec<f64> = win
+        .iter()
+        .map(|d| d.wzo_ratio)
+        .filter(|x| x.is_finite())
+        .collect();
+    FlankSummary {
+        v_st_over_v_a: median(win.iter().map(|d| d.v_st_over_v_a).collect()),
+        wzo_ratio: median(ratios.clone()),
+        wzo_worst: ratios.iter().map(|x| (x - 1.0).abs()).reduce(f64::max),
+        free_streaming: win
+            .iter()
+            .map(|d| d.free_streaming)
+            .filter(|x| x.is_finite())
+            .reduce(f64::max),
+        outputs: win.len(),
+    }
 }
 
 fn write_atomic_text(path: &Path, text: &str) -> Result<(), Failure> {
@@ -393,6 +458,20 @@ pub fn run(a: StudyArgs) -> Result<(), Failure> {
                     "v_eff_cm_s": num(Some(o.fit.v_eff)),
                     "v_eff_over_alfven": num(Some(o.fit.v_eff / r.v_a)),
                     "streaming_fraction": num(final_fraction(o)),
+                    "flank_v_st_over_alfven": num(o.flank.v_st_over_v_a),
+                    "flank_wzo13_ratio": num(o.flank.wzo_ratio),
+                    "flank_wzo13_worst_deviation": num(o.flank.wzo_worst),
+                    "flank_outputs": o.flank.outputs,
+                    "flank_max_free_streaming": num(o.flank.free_streaming),
+                    "flank_series": o.drifts.iter()
+                        .map(|d| serde_json::json!({
+                            "time_s": d.time,
+                            "cells": d.cells,
+                            "v_st_over_alfven": num(Some(d.v_st_over_v_a)),
+                            "wzo13_ratio": num(Some(d.wzo_ratio)),
+                            "free_streaming": num(Some(d.free_streaming)),
+                        }))
+                        .collect::<Vec<_>>(),
                     "streaming_fraction_series": o.fractions.iter()
                         .map(|f| serde_json::json!({"time_s": f.0, "fraction": num(Some(f.1))}))
                         .collect::<Vec<_>>(),
@@ -437,7 +516,7 @@ pub fn run(a: StudyArgs) -> Result<(), Failure> {
         window.1
     );
     println!(
-        "{:<22} {:>8} {:>8} {:>12} {:>8} {:>12} {:>8} {:>8} {:>12} {:>7} {:>7}",
+        "{:<22} {:>8} {:>8} {:>12} {:>8} {:>12} {:>8} {:>8} {:>8} {:>8} {:>12} {:>7} {:>7}",
         "variant",
         "alpha_W",
         "alpha_x",
@@ -446,18 +525,20 @@ pub fn run(a: StudyArgs) -> Result<(), Failure> {
         "v_eff",
         "/v_a",
         "phi_st",
+        "flank",
+        "/WZO13",
         "W(t_end)",
         "steps",
         "wall"
     );
     println!(
-        "{:<22} {:>8} {:>8} {:>12} {:>8} {:>12} {:>8} {:>8} {:>12} {:>7} {:>7}",
-        "", "1", "1", "cm/s", "1", "cm/s", "1", "1", "cm", "", "s"
+        "{:<22} {:>8} {:>8} {:>12} {:>8} {:>12} {:>8} {:>8} {:>8} {:>8} {:>12} {:>7} {:>7}",
+        "", "1", "1", "cm/s", "1", "cm/s", "1", "1", "v_st/v_a", "1", "cm", "", "s"
     );
     for o in &done {
         let last = o.samples.last();
         println!(
-            "{:<22} {:>8} {:>8} {:>12} {:>8} {:>12} {:>8} {:>8} {:>12} {:>7} {:>7.2}",
+            "{:<22} {:>8} {:>8} {:>12} {:>8} {:>12} {:>8} {:>8} {:>8} {:>8} {:>12} {:>7} {:>7.2}",
             o.variant.name,
             show(o.fit.alpha_width, 3),
             show(o.fit.alpha_front, 3),
@@ -466,12 +547,27 @@ pub fn run(a: StudyArgs) -> Result<(), Failure> {
             format!("{:.4e}", o.fit.v_eff),
             show(Some(o.fit.v_eff / r.v_a), 3),
             show(final_fraction(o), 3),
+            show(o.flank.v_st_over_v_a, 3),
+            show(o.flank.wzo_ratio, 3),
             last.map_or("-".into(), |s| format!("{:.4e}", s.width)),
             o.steps,
             o.wall
         );
     }
     for o in &done {
+        if let Some(fs) = o.flank.free_streaming.filter(|&f| f > 0.3) {
+            eprintln!(
+                "sluice: warning: variant `{}`: the flank flux reaches {:.0}% of the free-streaming bound c_r e_c; its drift is set by the reduced speed of light, not by the waves (raise cosmic_rays.auto_factor or lower the damping)",
+                o.variant.name,
+                100.0 * fs
+            );
+        }
+        if o.self_confined && o.flank.outputs == 0 {
+            eprintln!(
+                "sluice: warning: variant `{}`: no confined flank cells at the outputs in the fit window (waves at the floor): the CRs are decoupled from the waves and the drift relation cannot be checked (lower the damping, or add outputs with run.output_interval)",
+                o.variant.name
+            );
+        }
         let e = edge(o);
         if e > 0.05 {
             eprintln!(
@@ -482,7 +578,7 @@ pub fn run(a: StudyArgs) -> Result<(), Failure> {
         }
     }
     println!(
-        "alpha_W: sqrt(W^2 - W(0)^2) ~ t^alpha (diffusion 1/2); alpha_x: x_front - x_front(0) ~ t^alpha (streaming 1); phi_st: streaming fraction of the pulse flux at t_end. CSVs in {} ({:.2} s wall)",
+        "alpha_W: sqrt(W^2 - W(0)^2) ~ t^alpha (diffusion 1/2); alpha_x: x_front - x_front(0) ~ t^alpha (streaming 1); phi_st: streaming fraction of the pulse flux at t_end; flank: median |F|/(h v_a) on the pulse flanks over the outputs in the window, /WZO13: over v_a + f_E Gamma c^2 e_B/(alpha_nu Omega v_a h) (constant-rate damping only). CSVs in {} ({:.2} s wall)",
         out.display(),
         wall
     );

@@ -22,6 +22,7 @@ pub fn text(b: &[u8]) -> String {
 }
 
 /// Path of the shipped deck `problems/<name>`.
+#[allow(dead_code)] // not every test binary opens a shipped deck by name
 pub fn problem(name: &str) -> String {
     Path::new(ROOT)
         .join("problems")

@@ -202,8 +202,139 @@ pub fn pulse_streaming_fraction(sim: &Simulation, background: f64) -> f64 {
     }
 }
 
+/// Linear damping of a self-confined deck whose only damping is the constant rate:
+/// `(Γ_0 in s⁻¹, f_E)` with the wave energy loss Q = f_E Γ_0 e_±. `None` for other models
+/// or when ion–neutral, nonlinear Landau or turbulent damping is on (the drift relation of
+/// [`flank_drift`] is then not the one of linear constant damping).
+pub fn constant_damping(sim: &Simulation) -> Option<(f64, f64)> {
+    let deck = sim.deck();
+    let cr = deck.cosmic_rays.as_ref()?;
+    if cr.model != crate::physics::sections::CrModelChoice::SelfConfined {
+        return None;
+    }
+    let d = deck.damping.as_ref()?;
+    if d.ion_neutral.is_some() || d.nonlinear_landau.is_some() || d.turbulent.is_some() {
+        return None;
+    }
+    Some((d.constant_rate, d.energy_factor))
+}
+
+/// Drift speed of the pulse flanks at one instant against the growth = damping balance.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct FlankDrift {
+    /// Time, s.
+    pub time: f64,
+    /// Number of flank cells: interior cells with 0.2 ≤ δ/δ_max ≤ 0.8 and a centred CR
+    /// energy gradient of at least 10% of the largest one (δ = e_c − e_bg); for the
+    /// self-confined model also confined, max(e_+, e_−) ≥ 100 × the wave floor (cells whose
+    /// waves sit at the floor are decoupled and outside the growth = damping balance).
+    pub cells: usize,
+    /// Median over the flank cells of v_st/v_a, v_st = |F|/h (h = γ_c e_c) and v_a the
+    /// local Alfvén speed of the model (`alfven_speed` snapshot field).
+    pub v_st_over_v_a: f64,
+    /// Median over the flank cells of v_st / (v_a + f_E Γ_0 c² e_B/(α_ν Ω v_a h)), the
+    /// streaming speed of growth = linear damping (physics-detail §4.1; Wiener, Zweibel &
+    /// Oh 2013, ApJ 767, 87). NaN unless [`constant_damping`] applies.
+    pub wzo_ratio: f64,
+    /// Largest |F|/(c_r e_c) over the flank cells: how close the flanks are to the
+    /// free-streaming bound of the two-moment model (|F| ≤ c_r e_c). Near 1 the drift is set
+    /// by the reduced speed of light c_r, not by the waves.
+    pub free_streaming: f64,
+}
+
+fn median(v: &mut [f64]) -> f64 {
+    if v.is_empty() {
+        return f64::NAN;
+    }
+    v.sort_by(f64::total_cmp);
+    let n = v.len();
+    if n % 2 == 1 {
+        v[n / 2]
+    } else {
+        0.5 * (v[n / 2 - 1] + v[n / 2])
+    }
+}
+
+/// Measures the drift of the pulse flanks of `sim` over the background `background`
+/// (erg/cm³); see [`FlankDrift`]. Reads the snapshot fields of the CR stage (allocates: call
+/// it at output times). `None` without a CR stage, a pulse or flank cells.
+pub fn flank_drift(sim: &Simulation, background: f64) -> Option<FlankDrift> {
+    let stage = sim.stages().iter().find(|s| s.name() == "cr")?;
+    let fields = stage.fields(sim.state());
+    let get = |name: &str| fields.iter().find(|f| f.name == name).map(|f| &f.data);
+    let (e, flux, va) = (
+        get("cr_energy_density")?,
+        get("cr_flux")?,
+        get("alfven_speed")?,
+    );
+    let n = e.len();
+    if n < 3 {
+        return None;
+    }
+    let cr = sim.deck().cosmic_rays.as_ref()?;
+    let gamma_c = cr.adiabatic_index;
+    let dmax = e.iter().map(|v| v - background).fold(0.0, f64::max);
+    if dmax <= 0.0 {
+        return None;
+    }
+    let waves = match (get("forward_wave_energy"), get("backward_wave_energy")) {
+        (Some(p), Some(m)) if cr.model == crate::physics::sections::CrModelChoice::SelfConfined => {
+            Some((p, m))
+        }
+        _ => None,
+    };
+    let grad = |k: usize| (e[k + 1] - e[k - 1]).abs();
+    let gmax = (1..n - 1).map(grad).fold(0.0, f64::max);
+    let damping = constant_damping(sim);
+    let b = sim.deck().magnetic_field.x.abs();
+    let omega = sluice_damping::CharacteristicCr {
+        momentum_gev: cr.cr_momentum,
+    }
+    .gyro_frequency(b);
+    let c = sluice_damping::constants::C_LIGHT;
+    let e_b = b * b / (8.0 * std::f64::consts::PI);
+    let c_r = stage
+        .checkpoint()
+        .iter()
+        .find(|f| f.name == "c_r")
+        .and_then(|f| f.data.first().copied())
+        .map_or(f64::NAN, |v| v * sim.units().velocity);
+    let mut speeds = Vec::new();
+    let mut ratios = Vec::new();
+    let mut free: f64 = 0.0;
+    for k in 1..n - 1 {
+        let d = (e[k] - background) / dmax;
+        if !(0.2..=0.8).contains(&d) || grad(k) < 0.1 * gmax || va[k] <= 0.0 {
+            continue;
+        }
+        if let Some((p, m)) = waves {
+            if p[k].max(m[k]) < 100.0 * cr.wave_floor * e_b {
+                continue;
+            }
+        }
+        let h = gamma_c * e[k];
+        let v_st = flux[k].abs() / h;
+        speeds.push(v_st / va[k]);
+        free = free.max(flux[k].abs() / (c_r * e[k]));
+        if let Some((rate, f_e)) = damping {
+            let excess = f_e * rate * c * c * e_b / (cr.scattering_prefactor * omega * va[k] * h);
+            ratios.push(v_st / (va[k] + excess));
+        }
+    }
+    if speeds.is_empty() {
+        return None;
+    }
+    Some(FlankDrift {
+        time: sim.time_seconds(),
+        cells: speeds.len(),
+        v_st_over_v_a: median(&mut speeds),
+        wzo_ratio: median(&mut ratios),
+        free_streaming: free,
+    })
+}
+
 /// Observer of one study run: a [`PulseSample`] after every step (and at t = 0), the pulse
-/// streaming fraction at every output time, and optionally the snapshots and ledger of an
+/// streaming fraction and the [`FlankDrift`] at every output time, and optionally the snapshots and ledger of an
 /// [`OutputWriter`].
 pub struct PulseObserver {
     background: f64,
@@ -211,6 +342,8 @@ pub struct PulseObserver {
     pub samples: Vec<PulseSample>,
     /// (time in s, pulse streaming fraction) at every output time.
     pub fractions: Vec<(f64, f64)>,
+    /// Flank drift at every output time that has flank cells.
+    pub drifts: Vec<FlankDrift>,
     writer: Option<OutputWriter>,
 }
 
@@ -222,6 +355,7 @@ impl PulseObserver {
             background,
             samples: Vec::new(),
             fractions: Vec::new(),
+            drifts: Vec::new(),
             writer,
         }
     }
@@ -247,6 +381,9 @@ impl Observer for PulseObserver {
             sim.time_seconds(),
             pulse_streaming_fraction(sim, self.background),
         ));
+        if let Some(d) = flank_drift(sim, self.background) {
+            self.drifts.push(d);
+        }
         if let Some(w) = self.writer.as_mut() {
             w.output(sim, index)?;
         }
