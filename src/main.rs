@@ -38,7 +38,8 @@ enum Command {
     /// Join the summary CSVs of sweep shards into one.
     Merge(cmd::sweep::MergeArgs),
     /// Streaming versus diffusion: one CR pulse deck run under several transport variants in
-    /// parallel; reports the width exponent α, the front speed, v_eff and the streaming fraction.
+    /// parallel; reports the width exponent α, the front speed, v_eff, the streaming
+    /// fraction and the flank drift against growth = damping.
     Study(cmd::study::StudyArgs),
     /// Plot snapshot profiles or time series (ledger, slab diagnostics) as SVG or PNG.
     Plot(cmd::plot::PlotArgs),
