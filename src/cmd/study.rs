@@ -295,16 +295,7 @@ struct FlankSummary {
 
 fn median(mut v: Vec<f64>) -> Option<f64> {
     v.retain(|x| x.is_finite());
-    if v.is_empty() {
-        return None;
-    }
-    v.sort_by(f64::total_cmp);
-    let n = v.len();
-    Some(if n % 2 == 1 {
-        v[n / 2]
-    } else {
-        0.5 * (v[n / 2 - 1] + v[n / 2])
-    })
+    Some(sluice_driver::study::median(&mut v)).filter(|m| m.is_finite())
 }
 
 fn summarise_flanks(drifts: &[FlankDrift], lo: f64, hi: f64) -> FlankSummary {

@@ -242,7 +242,8 @@ pub struct FlankDrift {
     pub free_streaming: f64,
 }
 
-fn median(v: &mut [f64]) -> f64 {
+/// Median of the values (sorted in place); NaN for an empty slice.
+pub fn median(v: &mut [f64]) -> f64 {
     if v.is_empty() {
         return f64::NAN;
     }
