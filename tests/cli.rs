@@ -2,7 +2,7 @@
 
 mod common;
 
-use common::{problem, sluice, text, ROOT};
+use common::{problem, sluice, text};
 use sluice_driver::snapshot::{read, AttrValue};
 use std::path::{Path, PathBuf};
 use std::process::Output;
@@ -173,12 +173,7 @@ fn bad_decks_exit_2_naming_the_key() {
 
 #[test]
 fn every_problem_deck_passes_check() {
-    let mut decks: Vec<PathBuf> = std::fs::read_dir(Path::new(ROOT).join("problems"))
-        .unwrap()
-        .map(|e| e.unwrap().path())
-        .filter(|p| p.extension().is_some_and(|e| e == "toml"))
-        .collect();
-    decks.sort();
+    let decks = common::problem_decks();
     assert!(
         decks.len() >= 4,
         "expected at least four decks in problems/"

@@ -7,8 +7,7 @@
 
 mod common;
 
-use common::{sluice, text, ROOT};
-use std::path::{Path, PathBuf};
+use common::{sluice, text};
 
 fn column(header: &str, row: &str, name: &str) -> f64 {
     let i = header
@@ -20,12 +19,7 @@ fn column(header: &str, row: &str, name: &str) -> f64 {
 
 #[test]
 fn every_problem_deck_runs_to_t_end_with_closed_ledgers() {
-    let mut decks: Vec<PathBuf> = std::fs::read_dir(Path::new(ROOT).join("problems"))
-        .unwrap()
-        .map(|e| e.unwrap().path())
-        .filter(|p| p.extension().is_some_and(|e| e == "toml"))
-        .collect();
-    decks.sort();
+    let decks = common::problem_decks();
     assert!(
         decks.len() >= 10,
         "the problem library has {} decks",

@@ -30,3 +30,15 @@ pub fn problem(name: &str) -> String {
         .display()
         .to_string()
 }
+
+/// Every shipped deck `problems/*.toml`, sorted by path.
+#[allow(dead_code)] // not every test binary walks the problem library
+pub fn problem_decks() -> Vec<std::path::PathBuf> {
+    let mut decks: Vec<std::path::PathBuf> = std::fs::read_dir(Path::new(ROOT).join("problems"))
+        .expect("problems/ is readable")
+        .map(|e| e.expect("problems/ entry").path())
+        .filter(|p| p.extension().is_some_and(|e| e == "toml"))
+        .collect();
+    decks.sort();
+    decks
+}

@@ -287,13 +287,8 @@ pub fn flank_drift(sim: &Simulation, background: f64) -> Option<FlankDrift> {
     let grad = |k: usize| (e[k + 1] - e[k - 1]).abs();
     let gmax = (1..n - 1).map(grad).fold(0.0, f64::max);
     let damping = constant_damping(sim);
-    let b = sim.deck().magnetic_field.x.abs();
-    let omega = sluice_damping::CharacteristicCr {
-        momentum_gev: cr.cr_momentum,
-    }
-    .gyro_frequency(b);
-    let c = sluice_damping::constants::C_LIGHT;
-    let e_b = b * b / (8.0 * std::f64::consts::PI);
+    let coef = drift_coefficient(sim)?;
+    let e_b = sim.deck().magnetic_field.x.powi(2) / (8.0 * std::f64::consts::PI);
     let c_r = stage
         .checkpoint()
         .iter()
@@ -318,7 +313,7 @@ pub fn flank_drift(sim: &Simulation, background: f64) -> Option<FlankDrift> {
         speeds.push(v_st / va[k]);
         free = free.max(flux[k].abs() / (c_r * e[k]));
         if let Some((rate, f_e)) = damping {
-            let excess = f_e * rate * c * c * e_b / (cr.scattering_prefactor * omega * va[k] * h);
+            let excess = f_e * rate * coef / (va[k] * h);
             ratios.push(v_st / (va[k] + excess));
         }
     }
@@ -498,6 +493,12 @@ pub fn mean_alfven_speed(sim: &Simulation) -> f64 {
 /// 767, 87), equals v_a at the enthalpy `h` (erg/cm³): Γ* = α_ν Ω v_a² h/(2 c² e_B).
 /// `v_a` in cm/s; Ω and α_ν from the deck's `[cosmic_rays]` (1 GeV/c proton by default).
 pub fn reference_damping_rate(sim: &Simulation, v_a: f64, h: f64) -> Option<f64> {
+    Some(v_a * v_a * h / (2.0 * drift_coefficient(sim)?))
+}
+
+/// c² e_B/(α_ν Ω) of the deck (erg cm⁻¹ s⁻¹, so that f_E Γ c² e_B/(α_ν Ω v_a h) is a speed): the scale of the linear-damping drift excess (physics-detail §4.1). Ω and α_ν
+/// from `[cosmic_rays]`, e_B = B_x²/(8π). `None` without `[cosmic_rays]`.
+fn drift_coefficient(sim: &Simulation) -> Option<f64> {
     let sec = sim.deck().cosmic_rays.as_ref()?;
     let b = sim.deck().magnetic_field.x.abs();
     let omega = sluice_damping::CharacteristicCr {
@@ -506,7 +507,7 @@ pub fn reference_damping_rate(sim: &Simulation, v_a: f64, h: f64) -> Option<f64>
     .gyro_frequency(b);
     let c = sluice_damping::constants::C_LIGHT;
     let e_b = b * b / (8.0 * std::f64::consts::PI);
-    Some(sec.scattering_prefactor * omega * v_a * v_a * h / (2.0 * c * c * e_b))
+    Some(c * c * e_b / (sec.scattering_prefactor * omega))
 }
 
 #[cfg(test)]
